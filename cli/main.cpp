@@ -1,0 +1,11 @@
+// The program entry point only forwards to safesite::cli::run (style guide 4.11).
+#include <iostream>
+#include <string>
+#include <vector>
+
+#include "app.hpp"
+
+int main(int argc, char** argv) {
+    std::vector<std::string> args(argv + 1, argv + argc);
+    return safesite::cli::run(args, std::cout, std::cerr);
+}
