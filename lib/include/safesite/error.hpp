@@ -41,8 +41,14 @@ struct SourceLocation {
     std::string prefix() const {
         std::string out = file;
         if (line > 0) {
-            out += (out.empty() ? "line " : ":") + std::to_string(line);
-            if (column > 0) out += ":" + std::to_string(column);
+            // Two appends rather than one concatenation: g++ 12 gives a false -Wrestrict
+            // warning on `const char* + std::string&&` here (GCC bug 105329).
+            out += out.empty() ? "line " : ":";
+            out += std::to_string(line);
+            if (column > 0) {
+                out += ':';
+                out += std::to_string(column);
+            }
         }
         if (!out.empty()) out += ": ";
         return out;

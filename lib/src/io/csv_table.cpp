@@ -1,0 +1,333 @@
+#include "safesite/io/csv_table.hpp"
+
+#include <algorithm>
+#include <charconv>
+#include <cmath>
+#include <fstream>
+#include <set>
+#include <sstream>
+
+namespace safesite::io {
+
+namespace {
+
+/// Quote a value for an error message: "12,3" (quotes inside doubled, long values shortened).
+std::string quote_value(std::string_view value) {
+    std::string out = "\"";
+    const std::size_t limit = 40;
+    for (std::size_t i = 0; i < value.size() && i < limit; ++i) {
+        const char c = value[i];
+        if (c == '"')
+            out += "\"\"";
+        else if (c == '\n')
+            out += "\\n";
+        else if (c == '\r')
+            out += "\\r";
+        else
+            out += c;
+    }
+    if (value.size() > limit) out += "...";
+    return out + "\"";
+}
+
+std::string_view trimmed(std::string_view s) {
+    std::size_t b = 0, e = s.size();
+    while (b < e && (s[b] == ' ' || s[b] == '\t')) ++b;
+    while (e > b && (s[e - 1] == ' ' || s[e - 1] == '\t')) --e;
+    return s.substr(b, e - b);
+}
+
+std::string header_list(const std::vector<std::string>& header) {
+    std::string out;
+    for (std::size_t i = 0; i < header.size(); ++i) {
+        if (i > 0) out += ", ";
+        out += header[i];
+    }
+    return out;
+}
+
+/// The record-level CSV scanner (RFC 4180 section 2, rules 1-7).
+class Scanner {
+public:
+    Scanner(std::string_view text, const std::string& file) : m_text(text), m_file(file) {
+        // A UTF-8 byte-order mark (EF BB BF) is not part of the data.
+        if (m_text.size() >= 3 && static_cast<unsigned char>(m_text[0]) == 0xEF &&
+            static_cast<unsigned char>(m_text[1]) == 0xBB &&
+            static_cast<unsigned char>(m_text[2]) == 0xBF)
+            m_pos = 3;
+    }
+
+    bool at_end() const { return m_pos >= m_text.size(); }
+    std::size_t line() const { return m_line; }
+
+    /// Skip an empty line or (when `comments`) a `#` comment line. True when one was skipped.
+    bool skip_blank_or_comment(bool comments) {
+        if (at_end()) return false;
+        const char c = m_text[m_pos];
+        if (c == '\n' || (c == '\r' && peek(1) == '\n')) {
+            end_line();
+            return true;
+        }
+        if (comments && c == '#') {
+            while (!at_end() && m_text[m_pos] != '\n') ++m_pos;
+            if (!at_end()) end_line();
+            return true;
+        }
+        return false;
+    }
+
+    /// Read one record: its fields and the line each field starts on.
+    void record(std::vector<std::string>& fields, std::vector<std::size_t>& lines) {
+        fields.clear();
+        lines.clear();
+        while (true) {
+            lines.push_back(m_line);
+            fields.push_back(field(fields.size() + 1));
+            if (at_end()) return;
+            const char c = m_text[m_pos];
+            if (c == ',') {
+                ++m_pos;
+                if (at_end()) {  // a trailing comma before the end of the file: one empty field
+                    lines.push_back(m_line);
+                    fields.emplace_back();
+                    return;
+                }
+                continue;
+            }
+            // field() stops only at ',', a line end or the end of the text.
+            end_line();
+            return;
+        }
+    }
+
+private:
+    char peek(std::size_t ahead) const {
+        return m_pos + ahead < m_text.size() ? m_text[m_pos + ahead] : '\0';
+    }
+
+    void end_line() {
+        if (m_text[m_pos] == '\r') ++m_pos;
+        ++m_pos;  // the '\n'
+        ++m_line;
+    }
+
+    bool at_line_end() const {
+        const char c = m_text[m_pos];
+        return c == '\n' || (c == '\r' && peek(1) == '\n');
+    }
+
+    [[noreturn]] void fail(std::size_t line, std::size_t column, const std::string& reason) const {
+        throw DataError({m_file, line, column, ""}, reason);
+    }
+
+    std::string field(std::size_t column) {
+        std::string out;
+        if (!at_end() && m_text[m_pos] == '"') {
+            const std::size_t start_line = m_line;
+            ++m_pos;
+            while (true) {
+                if (at_end())
+                    fail(start_line, column,
+                         "quoted field is not closed before the end of the file; expected a "
+                         "closing '\"'");
+                const char c = m_text[m_pos];
+                if (c == '"') {
+                    if (peek(1) == '"') {  // rule 7: a doubled quote is one quote
+                        out += '"';
+                        m_pos += 2;
+                        continue;
+                    }
+                    ++m_pos;
+                    break;
+                }
+                if (c == '\n') ++m_line;  // rule 6: line breaks inside quotes are data
+                out += c;
+                ++m_pos;
+            }
+            if (!at_end() && m_text[m_pos] != ',' && !at_line_end())
+                fail(m_line, column,
+                     "text after the closing quote of a quoted field; expected ',' or a line "
+                     "end (write a quote inside a quoted field as \"\")");
+            return out;
+        }
+        while (!at_end() && m_text[m_pos] != ',' && !at_line_end()) {
+            if (m_text[m_pos] == '"')
+                fail(m_line, column,
+                     "quote inside an unquoted field; expected the whole field in quotes with "
+                     "inner quotes doubled (RFC 4180)");
+            out += m_text[m_pos++];
+        }
+        return out;
+    }
+
+    std::string_view m_text;
+    const std::string& m_file;
+    std::size_t m_pos = 0;
+    std::size_t m_line = 1;
+};
+
+}  // namespace
+
+CsvTable CsvTable::parse(std::string_view text, std::string file) {
+    CsvTable t;
+    t.m_file = std::move(file);
+    Scanner scan(text, t.m_file);
+
+    std::vector<std::string> fields;
+    std::vector<std::size_t> lines;
+    while (scan.skip_blank_or_comment(true)) {
+    }
+    if (scan.at_end()) throw DataError({t.m_file, 0, 0, ""}, "no header row; the file is empty");
+    t.m_header_line = scan.line();
+    scan.record(fields, lines);
+    std::set<std::string> seen;
+    for (std::size_t c = 0; c < fields.size(); ++c) {
+        std::string name(trimmed(fields[c]));
+        if (name.empty())
+            throw DataError({t.m_file, t.m_header_line, c + 1, ""},
+                            "empty column name in the header; expected a name for every column");
+        if (!seen.insert(name).second)
+            throw DataError({t.m_file, t.m_header_line, c + 1, name},
+                            "column name " + quote_value(name) + " appears twice in the header");
+        t.m_header.push_back(std::move(name));
+    }
+
+    while (true) {
+        while (scan.skip_blank_or_comment(false)) {
+        }
+        if (scan.at_end()) break;
+        const std::size_t row_line = scan.line();
+        scan.record(fields, lines);
+        if (fields.size() != t.m_header.size()) {
+            const std::size_t col = std::min(fields.size(), t.m_header.size() + 1);
+            throw DataError({t.m_file, row_line, col, ""},
+                            "row has " + std::to_string(fields.size()) + " fields; expected " +
+                                std::to_string(t.m_header.size()) + " as in the header (" +
+                                header_list(t.m_header) + ")");
+        }
+        t.m_row_line.push_back(row_line);
+        for (std::size_t c = 0; c < fields.size(); ++c) {
+            t.m_cells.push_back(std::move(fields[c]));
+            t.m_cell_line.push_back(lines[c]);
+        }
+    }
+    return t;
+}
+
+CsvTable CsvTable::read(const std::filesystem::path& path) {
+    std::ifstream in(path, std::ios::binary);
+    if (!in) throw DataError({path.string(), 0, 0, ""}, "cannot open the file for reading");
+    std::ostringstream buffer;
+    buffer << in.rdbuf();
+    if (in.bad()) throw DataError({path.string(), 0, 0, ""}, "cannot read the file");
+    return parse(buffer.str(), path.string());
+}
+
+std::optional<std::size_t> CsvTable::find(std::string_view file_name) const {
+    for (std::size_t c = 0; c < m_header.size(); ++c)
+        if (m_header[c] == file_name) return c;
+    return std::nullopt;
+}
+
+std::optional<std::size_t> CsvTable::locate(const std::string& name, const ColumnMap& map) const {
+    auto it = map.find(name);
+    return find(it == map.end() ? name : it->second);
+}
+
+std::size_t CsvTable::require(const std::string& name, const ColumnMap& map) const {
+    auto it = map.find(name);
+    const std::string& file_name = it == map.end() ? name : it->second;
+    if (auto c = find(file_name)) return *c;
+    std::string reason = "required column " + quote_value(file_name);
+    if (file_name != name) reason += " (our column '" + name + "')";
+    reason += " is missing; the header has: " + header_list(m_header);
+    throw DataError({m_file, m_header_line, 0, file_name}, reason);
+}
+
+bool CsvTable::empty(std::size_t row, std::size_t col) const {
+    return trimmed(cell(row, col)).empty();
+}
+
+SourceLocation CsvTable::where(std::size_t row, std::size_t col) const {
+    return {m_file, line(row, col), col + 1, m_header.at(col)};
+}
+
+DataError CsvTable::error_at(std::size_t row, std::size_t col, const std::string& reason) const {
+    return DataError(where(row, col), reason);
+}
+
+std::string CsvTable::text(std::size_t row, std::size_t col) const {
+    std::string_view v = trimmed(cell(row, col));
+    if (v.empty())
+        throw error_at(row, col, m_header[col] + " is empty; expected a value");
+    return std::string(v);
+}
+
+double CsvTable::real(std::size_t row, std::size_t col) const {
+    const std::string& raw = cell(row, col);
+    std::string_view v = trimmed(raw);
+    if (v.empty()) throw error_at(row, col, m_header[col] + " is empty; expected a number");
+    std::string_view digits = v;
+    if (digits.front() == '+') digits.remove_prefix(1);
+    double value = 0.0;
+    auto [end, ec] = std::from_chars(digits.data(), digits.data() + digits.size(), value,
+                                     std::chars_format::general);
+    if (ec == std::errc::result_out_of_range)
+        throw error_at(row, col,
+                       m_header[col] + " " + quote_value(raw) +
+                           " is out of the range of a double; expected a finite number");
+    if (ec != std::errc() || end != digits.data() + digits.size())
+        throw error_at(row, col,
+                       m_header[col] + " " + quote_value(raw) +
+                           " is not a number; expected a decimal with '.'");
+    if (!std::isfinite(value))
+        throw error_at(row, col,
+                       m_header[col] + " " + quote_value(raw) + " is not finite; expected a number");
+    return value;
+}
+
+std::int64_t CsvTable::integer(std::size_t row, std::size_t col) const {
+    const std::string& raw = cell(row, col);
+    std::string_view v = trimmed(raw);
+    if (v.empty()) throw error_at(row, col, m_header[col] + " is empty; expected a whole number");
+    std::string_view digits = v;
+    if (digits.front() == '+') digits.remove_prefix(1);
+    std::int64_t value = 0;
+    auto [end, ec] = std::from_chars(digits.data(), digits.data() + digits.size(), value);
+    if (ec != std::errc() || end != digits.data() + digits.size())
+        throw error_at(row, col,
+                       m_header[col] + " " + quote_value(raw) + " is not a whole number; expected " +
+                           "digits only");
+    return value;
+}
+
+bool CsvTable::flag(std::size_t row, std::size_t col) const {
+    const std::string& raw = cell(row, col);
+    std::string_view v = trimmed(raw);
+    if (v == "0") return false;
+    if (v == "1") return true;
+    throw error_at(row, col,
+                   m_header[col] + " " + quote_value(raw) + " is not a flag; expected 0 or 1");
+}
+
+std::optional<std::string> CsvTable::optional_text(std::size_t row, std::size_t col) const {
+    if (empty(row, col)) return std::nullopt;
+    return text(row, col);
+}
+
+std::optional<double> CsvTable::optional_real(std::size_t row, std::size_t col) const {
+    if (empty(row, col)) return std::nullopt;
+    return real(row, col);
+}
+
+std::optional<std::int64_t> CsvTable::optional_integer(std::size_t row, std::size_t col) const {
+    if (empty(row, col)) return std::nullopt;
+    return integer(row, col);
+}
+
+std::optional<bool> CsvTable::optional_flag(std::size_t row, std::size_t col) const {
+    if (empty(row, col)) return std::nullopt;
+    return flag(row, col);
+}
+
+}  // namespace safesite::io
