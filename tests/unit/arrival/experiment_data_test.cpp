@@ -3,6 +3,8 @@
 #include <catch2/catch.hpp>
 
 #include <cmath>
+#include <fstream>
+#include <iterator>
 #include <map>
 #include <string>
 
@@ -206,4 +208,22 @@ TEST_CASE("simulated experiments: reproducible, valid and consistent with the tr
     }
     CHECK(at_risk > 100);
     CHECK(present / at_risk == Approx(std::exp(-0.7)).margin(0.12));
+}
+
+TEST_CASE("the CSV examples in docs/formats.md are valid arrival data", "[arrival][unit]") {
+    // Keeps the format reference honest: the fenced csv blocks under "Trapping trials" and
+    // "Retention checks" must pass our own readers.
+    std::ifstream in(std::string(SAFESITE_SOURCE_DIR) + "/docs/formats.md");
+    REQUIRE(in);
+    const std::string doc((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+    auto block_after = [&](const std::string& heading) {
+        const auto h = doc.find(heading);
+        REQUIRE(h != std::string::npos);
+        const auto start = doc.find("```csv\n", h);
+        REQUIRE(start != std::string::npos);
+        const auto end = doc.find("```", start + 7);
+        return doc.substr(start + 7, end - start - 7);
+    };
+    CHECK(arr::parse_trapping(block_after("## Trapping trials"), forms).trials.size() == 3);
+    CHECK(arr::parse_retention(block_after("## Retention checks"), microsites).checks.size() == 5);
 }
