@@ -1,0 +1,940 @@
+// Reading the TOML model file (docs/formats.md, "Model file"). toml++ stays in this file.
+#include <algorithm>
+#include <cmath>
+#include <fstream>
+#include <set>
+#include <sstream>
+
+#include <toml++/toml.h>
+
+#include "safesite/io/near_match.hpp"
+#include "safesite/spec/model_spec.hpp"
+
+namespace safesite::spec {
+
+namespace {
+
+using Keys = std::vector<std::string>;
+
+/// The response column each vital rate's formula must have (the tables of census/transitions).
+const char* response_of(const std::string& rate) {
+    if (rate == "survival") return "survived";
+    if (rate == "growth") return "size_next";
+    if (rate == "flowering") return "flowered";
+    if (rate == "seeds") return "seeds";
+    return "size";  // recruit_size
+}
+
+std::string type_name(const toml::node& n) {
+    switch (n.type()) {
+        case toml::node_type::table: return "a table";
+        case toml::node_type::array: return "an array";
+        case toml::node_type::string: return "a string";
+        case toml::node_type::integer: return "an integer";
+        case toml::node_type::floating_point: return "a decimal number";
+        case toml::node_type::boolean: return "a boolean";
+        case toml::node_type::date: return "a date";
+        case toml::node_type::time: return "a time";
+        case toml::node_type::date_time: return "a date-time";
+        default: return "nothing";
+    }
+}
+
+std::string list(const Keys& keys) {
+    std::string out;
+    for (std::size_t i = 0; i < keys.size(); ++i) out += (i ? ", " : "") + keys[i];
+    return out;
+}
+
+std::string fmt_number(double x) {
+    std::ostringstream s;
+    s.precision(12);
+    s << x;
+    return s.str();
+}
+
+/// State shared by all readers of one file.
+struct Context {
+    std::string file;
+    std::set<std::string> keys;  // generic key paths present (no array indices)
+
+    [[noreturn]] void fail(const toml::source_region& where, const std::string& key,
+                           const std::string& reason) const {
+        throw SpecError({file, static_cast<std::size_t>(where.begin.line),
+                         static_cast<std::size_t>(where.begin.column), key},
+                        reason);
+    }
+    SourceLocation at(const toml::source_region& where, const std::string& key) const {
+        return {file, static_cast<std::size_t>(where.begin.line),
+                static_cast<std::size_t>(where.begin.column), key};
+    }
+};
+
+/// Typed access to one TOML table: every lookup names the full key path in errors and records
+/// the key as present.
+class TableReader {
+public:
+    TableReader(const toml::table& table, std::string path, std::string generic, Context& ctx)
+        : m_table(table), m_path(std::move(path)), m_generic(std::move(generic)), m_ctx(ctx) {}
+
+    const toml::table& table() const { return m_table; }
+    const std::string& path() const { return m_path; }
+    std::string key(std::string_view k) const {
+        return m_path.empty() ? std::string(k) : m_path + "." + std::string(k);
+    }
+    SourceLocation location() const { return m_ctx.at(m_table.source(), m_path); }
+    SourceLocation location(std::string_view k) const {
+        const toml::node* n = m_table.get(k);
+        return n ? m_ctx.at(n->source(), key(k)) : location();
+    }
+
+    /// Refuse keys that are not in `allowed`, with a hint for near misses.
+    void allow(const Keys& allowed) const {
+        for (auto&& [k, v] : m_table) {
+            (void)v;
+            const std::string name(k.str());
+            if (std::find(allowed.begin(), allowed.end(), name) != allowed.end()) continue;
+            std::string reason = "unknown key '" + key(name) + "'" +
+                                 io::did_you_mean(name, allowed);
+            if (io::closest_match(name, allowed) == std::nullopt)
+                reason += "; expected one of: " + list(allowed);
+            m_ctx.fail(k.source(), key(name), reason);
+        }
+    }
+
+    bool has(std::string_view k) const { return m_table.contains(k); }
+
+    [[noreturn]] void fail(std::string_view k, const std::string& reason) const {
+        const toml::node* n = m_table.get(k);
+        m_ctx.fail(n ? n->source() : m_table.source(), key(k), reason);
+    }
+    [[noreturn]] void fail_here(const std::string& reason) const {
+        m_ctx.fail(m_table.source(), m_path, reason);
+    }
+    [[noreturn]] void missing(std::string_view k, const std::string& what) const {
+        m_ctx.fail(m_table.source(), key(k),
+                   "missing required key '" + key(k) + "' (" + what + ")");
+    }
+
+    const toml::node* node(std::string_view k) const {
+        const toml::node* n = m_table.get(k);
+        if (n) m_ctx.keys.insert(m_generic.empty() ? std::string(k)
+                                                   : m_generic + "." + std::string(k));
+        return n;
+    }
+
+    [[noreturn]] void wrong_type(std::string_view k, const toml::node& n,
+                                 const std::string& expected) const {
+        m_ctx.fail(n.source(), key(k),
+                   "'" + key(k) + "' must be " + expected + "; got " + type_name(n));
+    }
+
+    std::optional<std::string> string(std::string_view k) const {
+        const toml::node* n = node(k);
+        if (!n) return std::nullopt;
+        if (!n->is_string()) wrong_type(k, *n, "a string");
+        return n->as_string()->get();
+    }
+    std::string required_string(std::string_view k, const std::string& what) const {
+        auto s = string(k);
+        if (!s) missing(k, what);
+        if (s->empty()) fail(k, "'" + key(k) + "' must not be empty");
+        return *s;
+    }
+    /// A string that must be one of `choices`.
+    std::optional<std::string> choice(std::string_view k, const Keys& choices) const {
+        auto s = string(k);
+        if (!s) return std::nullopt;
+        if (std::find(choices.begin(), choices.end(), *s) == choices.end())
+            fail(k, "'" + key(k) + "' = \"" + *s + "\" is not one of: " + list(choices) +
+                        io::did_you_mean(*s, choices));
+        return s;
+    }
+
+    static bool as_number(const toml::node& n, double& out) {
+        if (n.is_floating_point()) {
+            out = n.as_floating_point()->get();
+            return true;
+        }
+        if (n.is_integer()) {
+            out = static_cast<double>(n.as_integer()->get());
+            return true;
+        }
+        return false;
+    }
+
+    std::optional<double> number(std::string_view k) const {
+        const toml::node* n = node(k);
+        if (!n) return std::nullopt;
+        double x = 0.0;
+        if (!as_number(*n, x)) wrong_type(k, *n, "a number");
+        if (!std::isfinite(x)) fail(k, "'" + key(k) + "' must be a finite number");
+        return x;
+    }
+    std::optional<std::int64_t> integer(std::string_view k) const {
+        const toml::node* n = node(k);
+        if (!n) return std::nullopt;
+        if (!n->is_integer()) wrong_type(k, *n, "an integer");
+        return n->as_integer()->get();
+    }
+    std::optional<bool> boolean(std::string_view k) const {
+        const toml::node* n = node(k);
+        if (!n) return std::nullopt;
+        if (!n->is_boolean()) wrong_type(k, *n, "true or false");
+        return n->as_boolean()->get();
+    }
+    std::optional<Keys> strings(std::string_view k) const {
+        const toml::node* n = node(k);
+        if (!n) return std::nullopt;
+        if (!n->is_array()) wrong_type(k, *n, "an array of strings");
+        Keys out;
+        for (const toml::node& e : *n->as_array()) {
+            if (!e.is_string()) wrong_type(k, e, "an array of strings");
+            if (e.as_string()->get().empty())
+                m_ctx.fail(e.source(), key(k), "'" + key(k) + "' holds an empty string");
+            out.push_back(e.as_string()->get());
+        }
+        return out;
+    }
+    std::optional<std::vector<double>> numbers(std::string_view k) const {
+        const toml::node* n = node(k);
+        if (!n) return std::nullopt;
+        if (!n->is_array()) wrong_type(k, *n, "an array of numbers");
+        std::vector<double> out;
+        for (const toml::node& e : *n->as_array()) {
+            double x = 0.0;
+            if (!as_number(e, x)) wrong_type(k, e, "an array of numbers");
+            if (!std::isfinite(x))
+                m_ctx.fail(e.source(), key(k), "'" + key(k) + "' holds a non-finite number");
+            out.push_back(x);
+        }
+        return out;
+    }
+    /// A table of name → number (an inline table or a sub-table), in key order.
+    std::optional<std::vector<std::pair<std::string, double>>> number_map(
+        std::string_view k) const {
+        const toml::node* n = node(k);
+        if (!n) return std::nullopt;
+        if (!n->is_table()) wrong_type(k, *n, "a table of numbers, e.g. { name = 0.5 }");
+        std::vector<std::pair<std::string, double>> out;
+        for (auto&& [name, v] : *n->as_table()) {
+            double x = 0.0;
+            if (!as_number(v, x))
+                m_ctx.fail(v.source(), key(k) + "." + std::string(name.str()),
+                           "'" + key(k) + "." + std::string(name.str()) +
+                               "' must be a number; got " + type_name(v));
+            if (!std::isfinite(x))
+                m_ctx.fail(v.source(), key(k), "'" + key(k) + "' holds a non-finite number");
+            out.emplace_back(std::string(name.str()), x);
+        }
+        return out;
+    }
+    /// A table of name → string.
+    std::optional<io::ColumnMap> string_map(std::string_view k, const Keys& allowed_names) const {
+        const toml::node* n = m_table.get(k);
+        if (!n) return std::nullopt;
+        if (!n->is_table()) wrong_type(k, *n, "a table of strings");
+        TableReader sub(*n->as_table(), key(k),
+                        (m_generic.empty() ? "" : m_generic + ".") + std::string(k), m_ctx);
+        sub.allow(allowed_names);
+        io::ColumnMap out;
+        for (const auto& name : allowed_names)
+            if (auto s = sub.string(name)) {
+                if (s->empty()) sub.fail(name, "'" + sub.key(name) + "' must not be empty");
+                out[name] = *s;
+            }
+        return out;
+    }
+    /// A sub-table (not an inline value), or nothing.
+    std::optional<TableReader> table(std::string_view k) const {
+        const toml::node* n = m_table.get(k);
+        if (!n) return std::nullopt;
+        if (!n->is_table()) wrong_type(k, *n, "a table");
+        return TableReader(*n->as_table(), key(k),
+                           (m_generic.empty() ? "" : m_generic + ".") + std::string(k), m_ctx);
+    }
+
+    // Range checks with the key in the message.
+    void require_in(std::string_view k, double x, double lo, double hi) const {
+        if (!(x >= lo && x <= hi))
+            fail(k, "'" + key(k) + "' = " + fmt_number(x) + " is out of range; expected " +
+                        fmt_number(lo) + " ≤ value ≤ " + fmt_number(hi));
+    }
+    void require_at_least(std::string_view k, double x, double lo) const {
+        if (!(x >= lo))
+            fail(k, "'" + key(k) + "' = " + fmt_number(x) + " is out of range; expected ≥ " +
+                        fmt_number(lo));
+    }
+    void require_positive(std::string_view k, double x) const {
+        if (!(x > 0.0))
+            fail(k, "'" + key(k) + "' = " + fmt_number(x) + " is out of range; expected > 0");
+    }
+
+private:
+    const toml::table& m_table;
+    std::string m_path;
+    std::string m_generic;
+    Context& m_ctx;
+};
+
+std::filesystem::path resolve(const std::filesystem::path& model_file, const std::string& p) {
+    const std::filesystem::path given(p);
+    if (given.is_absolute()) return given.lexically_normal();
+    return (model_file.parent_path() / given).lexically_normal();
+}
+
+const Keys k_census_columns{"plant",   "year",  "plot",     "microsite", "size", "status",
+                            "flowered", "seeds", "seedling", "x",         "y"};
+const Keys k_trapping_columns{"neighbour", "form",     "neighbour_size",
+                              "seed_type", "launched", "trapped"};
+const Keys k_retention_columns{"seed", "station", "microsite", "seed_type", "day", "present"};
+
+/// Columns of the table each rate's formula sees (census/transitions.hpp).
+const Keys k_transition_factors{"microsite", "plot", "plant"};
+const Keys k_transition_numeric{"size", "size_next", "survived", "flowered", "seeds",
+                                "seedling"};
+const Keys k_recruit_factors{"microsite", "plot"};
+
+/// A map over microsite labels: keys must be known labels (with a hint), optionally all of
+/// them, optionally excluding bare soil. Values checked by `check`.
+template <class Check>
+std::map<std::string, double> label_map(const TableReader& r, std::string_view k,
+                                        const std::vector<std::pair<std::string, double>>& m,
+                                        const MicrositeSpec& ms, bool complete, bool no_bare,
+                                        Check check) {
+    Keys allowed;
+    for (const auto& l : ms.labels)
+        if (!(no_bare && l == ms.bare)) allowed.push_back(l);
+    std::map<std::string, double> out;
+    const toml::table& sub = *r.table().get(k)->as_table();
+    for (const auto& [label, value] : m) {
+        const toml::node* vn = sub.get(label);
+        const std::string where = r.key(k) + "." + label;
+        if (no_bare && label == ms.bare)
+            throw SpecError({r.location(k).file, vn->source().begin.line,
+                             vn->source().begin.column, where},
+                            "'" + where + "': '" + label +
+                                "' is the bare-soil microsite; expected a neighbour form (" +
+                                list(allowed) + ")");
+        if (std::find(allowed.begin(), allowed.end(), label) == allowed.end())
+            throw SpecError({r.location(k).file, vn->source().begin.line,
+                             vn->source().begin.column, where},
+                            "'" + where + "': unknown microsite '" + label + "'" +
+                                io::did_you_mean(label, allowed) + "; expected one of: " +
+                                list(allowed));
+        check(where, value, *vn);
+        out[label] = value;
+    }
+    if (complete)
+        for (const auto& l : allowed)
+            if (!out.count(l))
+                r.fail(k, "'" + r.key(k) + "' has no value for microsite '" + l +
+                              "'; expected one for each of: " + list(allowed));
+    return out;
+}
+
+/// Fractions over all microsites: each in [0, 1], summing to 1 within 1e-9. Label order.
+std::vector<double> read_fractions(const TableReader& r, std::string_view k,
+                                   const std::vector<std::pair<std::string, double>>& m,
+                                   const MicrositeSpec& ms, const std::string& file) {
+    auto check = [&](const std::string& where, double x, const toml::node& n) {
+        if (!(x >= 0.0 && x <= 1.0))
+            throw SpecError({file, n.source().begin.line, n.source().begin.column, where},
+                            "'" + where + "' = " + fmt_number(x) +
+                                " is out of range; expected 0 ≤ value ≤ 1");
+    };
+    const auto map = label_map(r, k, m, ms, true, false, check);
+    std::vector<double> out;
+    double sum = 0.0;
+    for (const auto& l : ms.labels) {
+        out.push_back(map.at(l));
+        sum += map.at(l);
+    }
+    // Tolerance 1e-9: values typed with up to 9 decimals still sum exactly enough; a real
+    // mistake (0.6 + 0.25 + 0.1) is off by ≥ 1e-3 (common practice).
+    if (std::abs(sum - 1.0) > 1e-9)
+        r.fail(k, "'" + r.key(k) + "' sums to " + fmt_number(sum) +
+                      "; expected the fractions to sum to 1 (within 1e-9)");
+    return out;
+}
+
+template <class E>
+E enum_of(const std::string& s, const std::vector<std::pair<const char*, E>>& table) {
+    for (const auto& [name, value] : table)
+        if (s == name) return value;
+    return table.front().second;  // unreachable after choice() validated the spelling
+}
+
+void check_groups(const TableReader& r, std::string_view k, const Keys& groups,
+                  const Keys& allowed) {
+    for (const auto& g : groups) {
+        if (g == "year")
+            r.fail(k, "'" + r.key(k) + "' lists 'year'; use year = \"random\" for a random "
+                      "year intercept");
+        if (std::find(allowed.begin(), allowed.end(), g) == allowed.end())
+            r.fail(k, "'" + r.key(k) + "': '" + g + "' is not a grouping column" +
+                          io::did_you_mean(g, allowed) + "; expected one of: " + list(allowed));
+    }
+}
+
+void check_formula(const TableReader& r, std::string_view k, const std::string& f,
+                   const char* response) {
+    const auto tilde = f.find('~');
+    if (tilde == std::string::npos || f.find('~', tilde + 1) != std::string::npos)
+        r.fail(k, "'" + r.key(k) + "' = \"" + f +
+                      "\" is not a formula; expected one '~', e.g. \"response ~ size\"");
+    auto trim = [](std::string s) {
+        const auto b = s.find_first_not_of(" \t");
+        const auto e = s.find_last_not_of(" \t");
+        return b == std::string::npos ? std::string() : s.substr(b, e - b + 1);
+    };
+    const std::string lhs = trim(f.substr(0, tilde));
+    const std::string rhs = trim(f.substr(tilde + 1));
+    if (lhs.empty() || rhs.empty())
+        r.fail(k, "'" + r.key(k) + "' = \"" + f + "\" needs a response and terms around '~'");
+    if (response && lhs != response)
+        r.fail(k, "'" + r.key(k) + "' = \"" + f + "\" has response '" + lhs +
+                      "'; expected '" + response + "' for this rate");
+}
+
+RateSpec read_rate(const TableReader& r, const std::string& name, Context& ctx) {
+    r.allow({"family", "link", "formula", "candidates", "year", "groups", "random_slope",
+             "spread", "coefficients", "sd", "spread_coefficients", "theta", "year_sd"});
+    RateSpec rate;
+    rate.name = name;
+    rate.at = r.location();
+    const Keys families{"binomial", "poisson", "negbin", "gaussian", "gaussian-spread"};
+    const Keys links{"logit", "probit", "cloglog", "log", "identity"};
+    auto family = r.choice("family", families);
+    if (!family) r.missing("family", "one of " + list(families));
+    rate.family = *family;
+    Keys allowed_links;
+    if (rate.family == "binomial")
+        allowed_links = {"logit", "probit", "cloglog"};
+    else if (rate.family == "poisson" || rate.family == "negbin")
+        allowed_links = {"log"};
+    else
+        allowed_links = {"identity"};
+    if (auto link = r.choice("link", links)) {
+        if (std::find(allowed_links.begin(), allowed_links.end(), *link) == allowed_links.end())
+            r.fail("link", "'" + r.key("link") + "' = \"" + *link + "\" does not suit family " +
+                               rate.family + "; expected " + list(allowed_links));
+        rate.link = *link;
+    } else {
+        rate.link = allowed_links.front();  // the canonical link
+    }
+
+    const char* response = response_of(name);
+    rate.formula = r.required_string("formula", std::string("e.g. \"") + response + " ~ size\"");
+    rate.formula_at = r.location("formula");
+    check_formula(r, "formula", rate.formula, response);
+    if (auto c = r.strings("candidates")) {
+        for (const auto& f : *c) check_formula(r, "candidates", f, response);
+        rate.candidates = *c;
+    }
+
+    if (auto y = r.choice("year", {"none", "fixed", "random"}))
+        rate.year = enum_of<YearHandling>(*y, {{"none", YearHandling::none},
+                                               {"fixed", YearHandling::fixed},
+                                               {"random", YearHandling::random}});
+    const bool recruits = name == "recruit_size";
+    if (auto g = r.strings("groups")) {
+        check_groups(r, "groups", *g, recruits ? k_recruit_factors : k_transition_factors);
+        rate.groups = *g;
+    }
+    if (auto s = r.string("random_slope")) {
+        if (rate.year != YearHandling::random)
+            r.fail("random_slope", "'" + r.key("random_slope") +
+                                       "' needs year = \"random\" (a random slope by year)");
+        const Keys numeric = recruits ? Keys{"size"} : k_transition_numeric;
+        if (std::find(numeric.begin(), numeric.end(), *s) == numeric.end())
+            r.fail("random_slope", "'" + r.key("random_slope") + "' = \"" + *s +
+                                       "\" is not a numeric column" +
+                                       io::did_you_mean(*s, numeric) +
+                                       "; expected one of: " + list(numeric));
+        rate.random_slope = *s;
+    }
+    if (auto s = r.string("spread")) {
+        if (rate.family != "gaussian-spread")
+            r.fail("spread", "'" + r.key("spread") + "' is used only with family "
+                                                      "\"gaussian-spread\"");
+        const Keys numeric = recruits ? Keys{"size"} : k_transition_numeric;
+        if (std::find(numeric.begin(), numeric.end(), *s) == numeric.end())
+            r.fail("spread", "'" + r.key("spread") + "' = \"" + *s +
+                                 "\" is not a numeric column" + io::did_you_mean(*s, numeric));
+        rate.spread = *s;
+    } else if (rate.family == "gaussian-spread") {
+        rate.spread = "size";
+    }
+
+    // Fixed parameter values.
+    if (auto c = r.number_map("coefficients")) {
+        if (c->empty()) r.fail("coefficients", "'" + r.key("coefficients") + "' is empty");
+        rate.coefficients.emplace(c->begin(), c->end());
+    }
+    const bool fixed = rate.is_fixed();
+    auto only_fixed = [&](std::string_view k) {
+        if (!fixed && r.has(k))
+            r.fail(k, "'" + r.key(k) + "' is used only with fixed coefficients; add "
+                                       "'coefficients' or remove it");
+    };
+    for (const char* k : {"sd", "spread_coefficients", "theta", "year_sd"}) only_fixed(k);
+    if (auto sd = r.number("sd")) {
+        if (rate.family != "gaussian")
+            r.fail("sd", "'" + r.key("sd") + "' is used only with family \"gaussian\"" +
+                             (rate.family == "gaussian-spread"
+                                  ? std::string("; use spread_coefficients")
+                                  : std::string()));
+        r.require_positive("sd", *sd);
+        rate.sd = sd;
+    }
+    if (auto g = r.numbers("spread_coefficients")) {
+        if (rate.family != "gaussian-spread")
+            r.fail("spread_coefficients", "'" + r.key("spread_coefficients") +
+                                              "' is used only with family \"gaussian-spread\"");
+        if (g->size() != 2)
+            r.fail("spread_coefficients", "'" + r.key("spread_coefficients") + "' has " +
+                                              std::to_string(g->size()) +
+                                              " values; expected 2 (g0, g1)");
+        rate.spread_coefficients = *g;
+    }
+    if (auto t = r.number("theta")) {
+        if (rate.family != "negbin")
+            r.fail("theta", "'" + r.key("theta") + "' is used only with family \"negbin\"");
+        r.require_positive("theta", *t);
+        rate.theta = t;
+    }
+    if (auto ysd = r.number("year_sd")) {
+        if (rate.year != YearHandling::random)
+            r.fail("year_sd", "'" + r.key("year_sd") + "' needs year = \"random\"");
+        r.require_at_least("year_sd", *ysd, 0.0);
+        rate.year_sd = ysd;
+    }
+    if (fixed) {
+        if (rate.family == "gaussian" && !rate.sd)
+            r.missing("sd", "a fixed gaussian rate needs its residual SD");
+        if (rate.family == "gaussian-spread" && rate.spread_coefficients.empty())
+            r.missing("spread_coefficients", "a fixed gaussian-spread rate needs g0, g1");
+        if (rate.family == "negbin" && !rate.theta)
+            r.missing("theta", "a fixed negbin rate needs its dispersion");
+        if (rate.year == YearHandling::random && !rate.year_sd)
+            r.missing("year_sd", "a fixed rate with year = \"random\" needs the SD of the year "
+                                 "intercepts");
+    }
+    (void)ctx;
+    return rate;
+}
+
+ArrivalSpec read_arrival(const TableReader& r, const MicrositeSpec& ms, const Context& ctx) {
+    r.allow({"method", "fractions", "cover", "exposure_days", "relanding", "seed_type",
+             "trapping_formula", "trapping_groups", "retention_formula", "retention_groups"});
+    ArrivalSpec a;
+    a.at = r.location();
+    const auto method = r.choice("method", {"fractions", "experiments"});
+    a.method = method && *method == "experiments" ? ArrivalMethod::experiments
+                                                  : ArrivalMethod::fractions;
+    const Keys chain_keys{"cover",           "exposure_days",     "relanding",
+                          "seed_type",       "trapping_formula",  "trapping_groups",
+                          "retention_formula", "retention_groups"};
+    if (a.method == ArrivalMethod::fractions) {
+        for (const auto& k : chain_keys)
+            if (r.has(k))
+                r.fail(k, "'" + r.key(k) + "' is used only with method = \"experiments\"");
+        auto m = r.number_map("fractions");
+        if (!m) r.missing("fractions", "arrival fraction per microsite, or method = "
+                                       "\"experiments\"");
+        a.fractions = read_fractions(r, "fractions", *m, ms, ctx.file);
+        return a;
+    }
+    if (r.has("fractions"))
+        r.fail("fractions", "'" + r.key("fractions") + "' is not used with method = "
+                            "\"experiments\"; give fractions in a [[scenario]] instead");
+    const toml::node* cover = r.node("cover");
+    if (!cover) r.missing("cover", "cover per neighbour form, or \"census\"");
+    if (cover->is_string()) {
+        if (cover->as_string()->get() != "census")
+            r.fail("cover", "'" + r.key("cover") + "' = \"" + cover->as_string()->get() +
+                                "\" is not understood; expected \"census\" or a table of "
+                                "cover per neighbour form");
+        a.cover_from_census = true;
+    } else {
+        auto m = r.number_map("cover");
+        auto check = [&](const std::string& where, double x, const toml::node& n) {
+            if (!(x >= 0.0 && x <= 1.0))
+                throw SpecError({ctx.file, n.source().begin.line, n.source().begin.column,
+                                 where},
+                                "'" + where + "' = " + fmt_number(x) +
+                                    " is out of range; expected 0 ≤ cover ≤ 1");
+        };
+        a.cover = label_map(r, "cover", *m, ms, true, true, check);
+        double sum = 0.0;
+        for (const auto& [l, c] : a.cover) sum += c;
+        if (sum > 1.0 + 1e-9)
+            r.fail("cover", "'" + r.key("cover") + "' sums to " + fmt_number(sum) +
+                                "; expected the cover of the neighbour forms to sum to ≤ 1");
+    }
+    auto days = r.number("exposure_days");
+    if (!days) r.missing("exposure_days", "days from seed release to germination");
+    r.require_at_least("exposure_days", *days, 0.0);
+    a.exposure_days = *days;
+    auto rel = r.number("relanding");
+    if (!rel) r.missing("relanding", "probability that a departing seed lands again");
+    r.require_in("relanding", *rel, 0.0, 1.0);
+    a.relanding = *rel;
+    a.seed_type = r.required_string("seed_type", "the focal seed type");
+    a.trapping_formula = r.required_string("trapping_formula", "e.g. \"trapped / launched ~ "
+                                                               "form\"");
+    check_formula(r, "trapping_formula", a.trapping_formula, nullptr);
+    a.retention_formula = r.required_string("retention_formula", "e.g. \"left ~ microsite\"");
+    check_formula(r, "retention_formula", a.retention_formula, nullptr);
+    if (auto g = r.strings("trapping_groups")) {
+        check_groups(r, "trapping_groups", *g, {"neighbour", "form", "seed_type"});
+        a.trapping_groups = *g;
+    }
+    if (auto g = r.strings("retention_groups")) {
+        check_groups(r, "retention_groups", *g, {"seed", "station", "microsite", "seed_type"});
+        a.retention_groups = *g;
+    }
+    return a;
+}
+
+ScenarioSpec read_scenario(const TableReader& r, const MicrositeSpec& ms, const Context& ctx) {
+    r.allow({"name", "fractions", "cover_factor", "trapping_odds_factor", "hazard_factor",
+             "exposure_days", "establishment_factor"});
+    ScenarioSpec s;
+    s.at = r.location();
+    s.name = r.required_string("name", "a name for the scenario");
+    if (auto m = r.number_map("fractions"))
+        s.fractions = read_fractions(r, "fractions", *m, ms, ctx.file);
+    auto nonneg = [&](const std::string& where, double x, const toml::node& n) {
+        if (!(x >= 0.0))
+            throw SpecError({ctx.file, n.source().begin.line, n.source().begin.column, where},
+                            "'" + where + "' = " + fmt_number(x) +
+                                " is out of range; expected a factor ≥ 0");
+    };
+    if (auto m = r.number_map("cover_factor"))
+        s.cover_factor = label_map(r, "cover_factor", *m, ms, false, true, nonneg);
+    if (auto m = r.number_map("trapping_odds_factor"))
+        s.trapping_odds_factor = label_map(r, "trapping_odds_factor", *m, ms, false, true, nonneg);
+    if (auto m = r.number_map("hazard_factor"))
+        s.hazard_factor = label_map(r, "hazard_factor", *m, ms, false, false, nonneg);
+    if (auto m = r.number_map("establishment_factor"))
+        s.establishment_factor =
+            label_map(r, "establishment_factor", *m, ms, false, false, nonneg);
+    if (auto d = r.number("exposure_days")) {
+        r.require_at_least("exposure_days", *d, 0.0);
+        s.exposure_days = d;
+    }
+    if (s.fractions && s.changes_chain())
+        r.fail_here("scenario '" + s.name + "' gives fractions and also changes the arrival "
+                    "chain (cover, trapping, hazard or exposure); the fractions would replace "
+                    "the chain, so give one or the other");
+    if (!s.fractions && !s.changes_chain() && s.establishment_factor.empty())
+        r.fail_here("scenario '" + s.name + "' changes nothing; expected at least one of "
+                    "fractions, cover_factor, trapping_odds_factor, hazard_factor, "
+                    "exposure_days, establishment_factor");
+    return s;
+}
+
+ModelSpec read_document(const toml::table& doc, const std::filesystem::path& file,
+                        Context& ctx) {
+    ModelSpec spec;
+    spec.file = file;
+    const TableReader root(doc, "", "", ctx);
+    root.allow({"model", "data", "census", "mesh", "microsites", "rates", "establishment",
+                "arrival", "scenario", "perturbation", "uncertainty", "output"});
+    auto required_table = [&](std::string_view k, const std::string& what) {
+        auto t = root.table(k);
+        if (!t)
+            throw SpecError({ctx.file, 0, 0, std::string(k)},
+                            "missing table [" + std::string(k) + "] (" + what + ")");
+        return *t;
+    };
+
+    // [model]
+    {
+        const TableReader r = required_table("model", "size_transform and a name");
+        r.allow({"name", "size_transform"});
+        spec.name = r.string("name").value_or(file.stem().string());
+        auto t = r.choice("size_transform", {"none", "log", "log1p", "sqrt"});
+        if (!t) r.missing("size_transform", "none, log, log1p or sqrt");
+        spec.size_transform = *census::parse_size_transform(*t);
+    }
+    // [data]
+    if (auto r = root.table("data")) {
+        r->allow({"census", "trapping", "retention", "columns", "trapping_columns",
+                  "retention_columns"});
+        for (const char* k : {"census", "trapping", "retention"}) {
+            auto p = r->string(k);
+            if (!p) continue;
+            if (p->empty()) r->fail(k, "'" + r->key(k) + "' must not be empty");
+            const auto path = resolve(file, *p);
+            if (std::string_view(k) == "census") spec.data.census = path;
+            if (std::string_view(k) == "trapping") spec.data.trapping = path;
+            if (std::string_view(k) == "retention") spec.data.retention = path;
+        }
+        if (auto m = r->string_map("columns", k_census_columns)) spec.data.census_columns = *m;
+        if (auto m = r->string_map("trapping_columns", k_trapping_columns))
+            spec.data.trapping_columns = *m;
+        if (auto m = r->string_map("retention_columns", k_retention_columns))
+            spec.data.retention_columns = *m;
+    }
+    // [census]
+    if (auto r = root.table("census")) {
+        r->allow({"missing_row", "seedling_flag"});
+        if (auto p = r->choice("missing_row", {"error", "notfound"}))
+            spec.census.missing_row = *census::parse_missing_row_policy(*p);
+        if (auto b = r->boolean("seedling_flag")) spec.census.seedling_flag = *b;
+    }
+    // [mesh]
+    if (auto r = root.table("mesh")) {
+        r->allow({"points", "rule", "eviction", "lower", "upper", "margin"});
+        if (auto n = r->integer("points")) {
+            if (*n < 2)
+                r->fail("points", "'mesh.points' = " + std::to_string(*n) +
+                                      " is out of range; expected an integer ≥ 2");
+            spec.mesh.points = static_cast<std::size_t>(*n);
+        }
+        if (auto s = r->choice("rule", {"midpoint", "gauss-legendre"}))
+            spec.mesh.rule = *s == "midpoint" ? QuadratureRule::midpoint
+                                              : QuadratureRule::gauss_legendre;
+        if (auto s = r->choice("eviction", {"boundary", "discard"}))
+            spec.mesh.eviction =
+                *s == "boundary" ? EvictionPolicy::boundary : EvictionPolicy::discard;
+        spec.mesh.lower = r->number("lower");
+        spec.mesh.upper = r->number("upper");
+        if (spec.mesh.lower && spec.mesh.upper && !(*spec.mesh.lower < *spec.mesh.upper))
+            r->fail("upper", "'mesh.upper' = " + fmt_number(*spec.mesh.upper) +
+                                 " is not above 'mesh.lower' = " +
+                                 fmt_number(*spec.mesh.lower) + "; expected lower < upper");
+        if (auto m = r->number("margin")) {
+            r->require_at_least("margin", *m, 0.0);
+            spec.mesh.margin = *m;
+        }
+    }
+    // [microsites]
+    {
+        const TableReader r = required_table("microsites", "labels and the bare one");
+        r.allow({"labels", "bare"});
+        auto labels = r.strings("labels");
+        if (!labels) r.missing("labels", "the microsite labels, e.g. [\"gravel\", \"cushion\"]");
+        if (labels->empty()) r.fail("labels", "'microsites.labels' is empty");
+        std::set<std::string> seen;
+        for (const auto& l : *labels)
+            if (!seen.insert(l).second)
+                r.fail("labels", "'microsites.labels' lists '" + l + "' twice");
+        spec.microsites.labels = *labels;
+        spec.microsites.bare = r.required_string("bare", "the bare-soil microsite label");
+        auto idx = spec.microsites.index(spec.microsites.bare);
+        if (!idx)
+            r.fail("bare", "'microsites.bare' = \"" + spec.microsites.bare +
+                               "\" is not one of the labels" +
+                               io::did_you_mean(spec.microsites.bare, *labels) +
+                               "; expected one of: " + list(*labels));
+        spec.microsites.bare_index = *idx;
+    }
+    // [rates.*]
+    {
+        const TableReader r = required_table("rates", "one table per vital rate");
+        r.allow(rate_names());
+        for (const auto& name : rate_names()) {
+            auto t = r.table(name);
+            if (!t)
+                throw SpecError({ctx.file, r.location().line, 0, "rates." + name},
+                                "missing table [rates." + name + "]; every vital rate (" +
+                                    list(rate_names()) + ") needs one");
+            spec.rates.push_back(read_rate(*t, name, ctx));
+        }
+    }
+    // [establishment]
+    if (auto r = root.table("establishment")) {
+        r->allow({"method", "values"});
+        if (auto m = r->choice("method", {"census", "fixed"}))
+            spec.establishment.method =
+                *m == "census" ? EstablishmentMethod::census : EstablishmentMethod::fixed;
+        if (spec.establishment.method == EstablishmentMethod::fixed) {
+            auto m = r->number_map("values");
+            if (!m) r->missing("values", "establishment probability per microsite");
+            auto check = [&](const std::string& where, double x, const toml::node& n) {
+                if (!(x >= 0.0 && x <= 1.0))
+                    throw SpecError({ctx.file, n.source().begin.line, n.source().begin.column,
+                                     where},
+                                    "'" + where + "' = " + fmt_number(x) +
+                                        " is out of range; expected a probability 0 ≤ p ≤ 1");
+            };
+            const auto map = label_map(*r, "values", *m, spec.microsites, true, false, check);
+            for (const auto& l : spec.microsites.labels)
+                spec.establishment.values.push_back(map.at(l));
+        } else if (r->has("values")) {
+            r->fail("values", "'establishment.values' is used only with method = \"fixed\"");
+        }
+    }
+    // [arrival]
+    {
+        const TableReader r = required_table("arrival", "arrival fractions or experiments");
+        spec.arrival = read_arrival(r, spec.microsites, ctx);
+    }
+    // [[scenario]]
+    if (const toml::node* n = doc.get("scenario")) {
+        if (!n->is_array_of_tables())
+            root.wrong_type("scenario", *n, "an array of tables ([[scenario]])");
+        std::set<std::string> names;
+        std::size_t i = 0;
+        for (const toml::node& e : *n->as_array()) {
+            ++i;
+            const TableReader r(*e.as_table(), "scenario[" + std::to_string(i) + "]",
+                                "scenario", ctx);
+            ScenarioSpec s = read_scenario(r, spec.microsites, ctx);
+            if (!names.insert(s.name).second)
+                r.fail("name", "scenario name '" + s.name + "' is used twice");
+            if (s.changes_chain() && spec.arrival.method != ArrivalMethod::experiments)
+                r.fail_here("scenario '" + s.name + "' changes the arrival chain; that needs "
+                            "arrival.method = \"experiments\"");
+            spec.scenarios.push_back(std::move(s));
+        }
+    }
+    // [perturbation]
+    if (auto r = root.table("perturbation")) {
+        r->allow({"juvenile", "juvenile_size_below", "survival_changes"});
+        if (auto j = r->choice("juvenile", {"seedling", "size"}))
+            spec.perturbation.juvenile =
+                *j == "seedling" ? JuvenileRule::seedling : JuvenileRule::size;
+        spec.perturbation.juvenile_size_below = r->number("juvenile_size_below");
+        if (spec.perturbation.juvenile == JuvenileRule::size &&
+            !spec.perturbation.juvenile_size_below)
+            r->missing("juvenile_size_below", "the transformed size below which a plant is "
+                                              "juvenile");
+        if (spec.perturbation.juvenile == JuvenileRule::seedling &&
+            spec.perturbation.juvenile_size_below)
+            r->fail("juvenile_size_below",
+                    "'perturbation.juvenile_size_below' is used only with juvenile = \"size\"");
+        if (spec.perturbation.juvenile == JuvenileRule::seedling && !spec.census.seedling_flag)
+            r->fail("juvenile", "'perturbation.juvenile' = \"seedling\" needs the census to "
+                                "mark seedlings (census.seedling_flag = true); use juvenile = "
+                                "\"size\"");
+        auto changes = r->numbers("survival_changes");
+        if (!changes)
+            r->missing("survival_changes", "proportional changes, e.g. [-0.2, 0.0, 0.2]");
+        for (double c : *changes)
+            if (!(c >= -1.0))
+                r->fail("survival_changes", "'perturbation.survival_changes' holds " +
+                                                fmt_number(c) + "; expected changes ≥ -1");
+        spec.perturbation.survival_changes = *changes;
+    }
+    // [uncertainty]
+    if (auto r = root.table("uncertainty")) {
+        r->allow({"replicates", "seed", "level"});
+        if (auto n = r->integer("replicates")) {
+            if (*n < 0) r->fail("replicates", "'uncertainty.replicates' must be ≥ 0");
+            spec.uncertainty.replicates = static_cast<std::size_t>(*n);
+        }
+        if (auto n = r->integer("seed")) {
+            if (*n < 0) r->fail("seed", "'uncertainty.seed' must be ≥ 0");
+            spec.uncertainty.seed = static_cast<std::uint64_t>(*n);
+        }
+        if (auto l = r->number("level")) {
+            if (!(*l > 0.0 && *l < 1.0))
+                r->fail("level", "'uncertainty.level' = " + fmt_number(*l) +
+                                     " is out of range; expected 0 < level < 1");
+            spec.uncertainty.level = *l;
+        }
+    }
+    // [output]
+    spec.output.dir = resolve(file, "out");
+    if (auto r = root.table("output")) {
+        r->allow({"dir", "print_coordinates"});
+        if (auto d = r->string("dir")) {
+            if (d->empty()) r->fail("dir", "'output.dir' must not be empty");
+            spec.output.dir = resolve(file, *d);
+        }
+        if (auto b = r->boolean("print_coordinates")) spec.output.print_coordinates = *b;
+    }
+
+    // Rules across tables: the data each part needs.
+    const bool have_census = spec.data.census.has_value();
+    for (const auto& rate : spec.rates)
+        if (!rate.is_fixed() && !have_census)
+            throw SpecError(rate.at, "rate '" + rate.name +
+                                         "' is fitted (no coefficients) but data.census is "
+                                         "not given");
+    if (spec.establishment.method == EstablishmentMethod::census && !have_census)
+        throw SpecError({ctx.file, 0, 0, "establishment.method"},
+                        "establishment.method = \"census\" (the default) needs data.census; "
+                        "give data.census or method = \"fixed\" with values");
+    if (spec.arrival.method == ArrivalMethod::experiments) {
+        if (!spec.data.trapping || !spec.data.retention)
+            throw SpecError(spec.arrival.at,
+                            "arrival.method = \"experiments\" needs data.trapping and "
+                            "data.retention");
+        if (spec.arrival.cover_from_census && !have_census)
+            throw SpecError(spec.arrival.at, "arrival.cover = \"census\" needs data.census");
+    }
+
+    spec.keys.assign(ctx.keys.begin(), ctx.keys.end());
+    return spec;
+}
+
+}  // namespace
+
+const std::vector<std::string>& rate_names() {
+    static const std::vector<std::string> names{"survival", "growth", "flowering", "seeds",
+                                                "recruit_size"};
+    return names;
+}
+
+std::optional<std::size_t> MicrositeSpec::index(std::string_view label) const {
+    for (std::size_t i = 0; i < labels.size(); ++i)
+        if (labels[i] == label) return i;
+    return std::nullopt;
+}
+
+const RateSpec& ModelSpec::rate(std::string_view name) const {
+    for (const auto& r : rates)
+        if (r.name == name) return r;
+    throw UsageError("'" + std::string(name) + "' is not a vital rate");
+}
+
+bool ModelSpec::all_rates_fixed() const noexcept {
+    return std::all_of(rates.begin(), rates.end(), [](const RateSpec& r) { return r.is_fixed(); });
+}
+
+const char* to_string(YearHandling y) noexcept {
+    switch (y) {
+        case YearHandling::none: return "none";
+        case YearHandling::fixed: return "fixed";
+        case YearHandling::random: return "random";
+    }
+    return "none";
+}
+
+const char* to_string(QuadratureRule r) noexcept {
+    return r == QuadratureRule::midpoint ? "midpoint" : "gauss-legendre";
+}
+
+const char* to_string(EvictionPolicy e) noexcept {
+    return e == EvictionPolicy::boundary ? "boundary" : "discard";
+}
+
+ModelSpec parse_model_spec(std::string_view text, const std::filesystem::path& file) {
+    Context ctx;
+    ctx.file = file.string();
+    toml::table doc;
+    try {
+        doc = toml::parse(text, ctx.file);
+    } catch (const toml::parse_error& e) {
+        throw SpecError({ctx.file, static_cast<std::size_t>(e.source().begin.line),
+                         static_cast<std::size_t>(e.source().begin.column), ""},
+                        "TOML syntax: " + std::string(e.description()));
+    }
+    return read_document(doc, file, ctx);
+}
+
+ModelSpec read_model_spec(const std::filesystem::path& file) {
+    std::ifstream in(file, std::ios::binary);
+    if (!in) throw SpecError({file.string(), 0, 0, ""}, "cannot open the model file");
+    std::ostringstream buffer;
+    buffer << in.rdbuf();
+    return parse_model_spec(buffer.str(), file);
+}
+
+}  // namespace safesite::spec
