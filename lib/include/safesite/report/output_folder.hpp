@@ -1,0 +1,42 @@
+#pragma once
+/// \file output_folder.hpp
+/// Writers for the output folder of a run (design.md section 6, docs/formats.md "Outputs"):
+/// every table as `<dir>/<name>.csv` (RFC 4180) and all tables, with the run's metadata and
+/// the caution, as `<dir>/summary.json`. Every file is written to a temporary file in `dir`
+/// and then renamed over the target, so a reader never sees a half-written file.
+
+#include <filesystem>
+#include <string>
+#include <vector>
+
+#include "safesite/report/run_info.hpp"
+#include "safesite/report/tidy_table.hpp"
+
+namespace safesite::report {
+
+/// The table as RFC 4180 CSV text: a header row, then one line per row, LF line ends. A field
+/// is quoted when it holds a comma, a quote, CR or LF, or begins or ends with a space; a quote
+/// inside a quoted field is doubled. \throws UsageError when check_table() fails.
+std::string to_csv(const TidyTable& table);
+
+/// The summary as JSON text (2-space indent, keys in a fixed order, trailing newline):
+/// `{"safesite_version", "command", "model": {"file", "name"}, "seed", "caution",
+///   "assumptions", "warnings", "tables": [{"name", "columns", "rows"}...]}`.
+/// Numbers are the same binary doubles as in the CSV files.
+/// \throws UsageError when a table fails check_table() or two tables share a name.
+std::string to_summary_json(const std::vector<TidyTable>& tables, const RunInfo& info);
+
+/// Write the output folder: creates `dir` (and parents) when absent, writes every table as
+/// `<dir>/<name>.csv`, then `<dir>/summary.json`. Existing files of the same names are
+/// replaced; other files in `dir` are left alone. Returns the paths written, in order.
+/// \throws UsageError for invalid or duplicate table names; InputError (key "out") when the
+///         folder cannot be created or a file cannot be written.
+std::vector<std::filesystem::path> write_output_folder(const std::filesystem::path& dir,
+                                                       const std::vector<TidyTable>& tables,
+                                                       const RunInfo& info);
+
+/// Write `content` to `path` atomically (temporary file in the same folder, then rename).
+/// \throws InputError (key "out") when the file cannot be written.
+void write_text_atomic(const std::filesystem::path& path, const std::string& content);
+
+}  // namespace safesite::report

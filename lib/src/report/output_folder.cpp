@@ -1,0 +1,171 @@
+#include "safesite/report/output_folder.hpp"
+
+#include <atomic>
+#include <cmath>
+#include <fstream>
+#include <set>
+#include <system_error>
+
+#include <unistd.h>
+
+#include <nlohmann/json.hpp>
+
+#include "safesite/error.hpp"
+#include "safesite/report/caution.hpp"
+#include "safesite/version.hpp"
+
+namespace safesite::report {
+
+namespace {
+
+namespace fs = std::filesystem;
+
+/// RFC 4180 quoting, plus quoting of leading/trailing spaces so no reader trims them.
+std::string quote_field(const std::string& field) {
+    bool needs = field.find_first_of(",\"\r\n") != std::string::npos;
+    if (!field.empty() && (field.front() == ' ' || field.back() == ' ')) needs = true;
+    if (!needs) return field;
+    std::string out = "\"";
+    for (char c : field) {
+        if (c == '"') out += '"';
+        out += c;
+    }
+    out += '"';
+    return out;
+}
+
+nlohmann::ordered_json cell_json(const Cell& cell) {
+    struct Visitor {
+        nlohmann::ordered_json operator()(const Missing&) const { return nullptr; }
+        nlohmann::ordered_json operator()(const std::string& s) const { return s; }
+        nlohmann::ordered_json operator()(std::int64_t i) const { return i; }
+        nlohmann::ordered_json operator()(double x) const {
+            if (!std::isfinite(x)) return nullptr;  // JSON has no NaN/Inf
+            return x;
+        }
+    };
+    return std::visit(Visitor{}, cell);
+}
+
+void check_tables(const std::vector<TidyTable>& tables) {
+    std::set<std::string> names;
+    for (const auto& t : tables) {
+        check_table(t);
+        if (t.name == "summary") {
+            throw UsageError("table name \"summary\" is reserved for summary.json");
+        }
+        if (!names.insert(t.name).second) {
+            throw UsageError("two tables are named \"" + t.name + "\"");
+        }
+    }
+}
+
+[[noreturn]] void write_failed(const fs::path& path, const std::string& why) {
+    throw InputError({path.string(), 0, 0, "out"}, "cannot write output file: " + why);
+}
+
+}  // namespace
+
+std::string to_csv(const TidyTable& table) {
+    check_table(table);
+    std::string out;
+    for (std::size_t c = 0; c < table.columns.size(); ++c) {
+        if (c > 0) out += ',';
+        out += quote_field(table.columns[c]);
+    }
+    out += '\n';
+    for (const auto& row : table.rows) {
+        for (std::size_t c = 0; c < row.size(); ++c) {
+            if (c > 0) out += ',';
+            out += quote_field(format_cell(row[c]));
+        }
+        out += '\n';
+    }
+    return out;
+}
+
+std::string to_summary_json(const std::vector<TidyTable>& tables, const RunInfo& info) {
+    check_tables(tables);
+    nlohmann::ordered_json j;
+    j["safesite_version"] = version();
+    j["command"] = info.command;
+    j["model"] = {{"file", info.model_file}, {"name", info.model_name}};
+    if (info.seed) {
+        j["seed"] = *info.seed;
+    } else {
+        j["seed"] = nullptr;
+    }
+    j["caution"] = k_caution;
+    j["assumptions"] = info.assumptions;
+    j["warnings"] = info.warnings;
+    auto list = nlohmann::ordered_json::array();
+    for (const auto& t : tables) {
+        nlohmann::ordered_json jt;
+        jt["name"] = t.name;
+        jt["columns"] = t.columns;
+        auto rows = nlohmann::ordered_json::array();
+        for (const auto& row : t.rows) {
+            auto jr = nlohmann::ordered_json::array();
+            for (const auto& cell : row) jr.push_back(cell_json(cell));
+            rows.push_back(std::move(jr));
+        }
+        jt["rows"] = std::move(rows);
+        list.push_back(std::move(jt));
+    }
+    j["tables"] = std::move(list);
+    return j.dump(2) + "\n";
+}
+
+void write_text_atomic(const fs::path& path, const std::string& content) {
+    // Temporary file in the target folder (same file system, so rename is atomic on POSIX),
+    // named uniquely per process and call.
+    static std::atomic<unsigned long> counter{0};
+    const fs::path dir = path.has_parent_path() ? path.parent_path() : fs::path(".");
+    const fs::path tmp =
+        dir / ("." + path.filename().string() + ".tmp-" + std::to_string(::getpid()) + "-" +
+               std::to_string(counter.fetch_add(1)));
+    {
+        std::ofstream f(tmp, std::ios::binary | std::ios::trunc);
+        if (!f) write_failed(path, "cannot create a temporary file in " + dir.string());
+        f.write(content.data(), static_cast<std::streamsize>(content.size()));
+        f.close();
+        if (!f) {
+            std::error_code ignored;
+            fs::remove(tmp, ignored);
+            write_failed(path, "write error (disk full?)");
+        }
+    }
+    std::error_code ec;
+    fs::rename(tmp, path, ec);
+    if (ec) {
+        std::error_code ignored;
+        fs::remove(tmp, ignored);
+        write_failed(path, ec.message());
+    }
+}
+
+std::vector<fs::path> write_output_folder(const fs::path& dir,
+                                          const std::vector<TidyTable>& tables,
+                                          const RunInfo& info) {
+    check_tables(tables);
+    // Render everything first: a bad table fails before any file is touched.
+    const std::string json = to_summary_json(tables, info);
+    std::error_code ec;
+    fs::create_directories(dir, ec);
+    if (ec || !fs::is_directory(dir)) {
+        throw InputError({dir.string(), 0, 0, "out"},
+                         "cannot create output folder: " + (ec ? ec.message() : "not a folder"));
+    }
+    std::vector<fs::path> written;
+    for (const auto& t : tables) {
+        const fs::path p = dir / (t.name + ".csv");
+        write_text_atomic(p, to_csv(t));
+        written.push_back(p);
+    }
+    const fs::path s = dir / "summary.json";
+    write_text_atomic(s, json);
+    written.push_back(s);
+    return written;
+}
+
+}  // namespace safesite::report
