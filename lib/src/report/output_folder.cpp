@@ -1,16 +1,12 @@
 #include "safesite/report/output_folder.hpp"
 
-#include <atomic>
 #include <cmath>
-#include <fstream>
 #include <set>
-#include <system_error>
-
-#include <unistd.h>
 
 #include <nlohmann/json.hpp>
 
 #include "safesite/error.hpp"
+#include "safesite/io/atomic_file.hpp"
 #include "safesite/report/caution.hpp"
 #include "safesite/version.hpp"
 
@@ -60,8 +56,16 @@ void check_tables(const std::vector<TidyTable>& tables) {
     }
 }
 
-[[noreturn]] void write_failed(const fs::path& path, const std::string& why) {
-    throw InputError({path.string(), 0, 0, "out"}, "cannot write output file: " + why);
+/// io's atomic write, with a failure turned into an input error that names the path and the
+/// key "out" (the output folder is an input of the command line).
+void write_checked(const fs::path& path, const std::string& content) {
+    try {
+        io::write_file_atomic(path, content);
+    } catch (const InputError&) {
+        throw;
+    } catch (const Error& e) {
+        throw InputError({path.string(), 0, 0, "out"}, e.what());
+    }
 }
 
 }  // namespace
@@ -116,54 +120,25 @@ std::string to_summary_json(const std::vector<TidyTable>& tables, const RunInfo&
     return j.dump(2) + "\n";
 }
 
-void write_text_atomic(const fs::path& path, const std::string& content) {
-    // Temporary file in the target folder (same file system, so rename is atomic on POSIX),
-    // named uniquely per process and call.
-    static std::atomic<unsigned long> counter{0};
-    const fs::path dir = path.has_parent_path() ? path.parent_path() : fs::path(".");
-    const fs::path tmp =
-        dir / ("." + path.filename().string() + ".tmp-" + std::to_string(::getpid()) + "-" +
-               std::to_string(counter.fetch_add(1)));
-    {
-        std::ofstream f(tmp, std::ios::binary | std::ios::trunc);
-        if (!f) write_failed(path, "cannot create a temporary file in " + dir.string());
-        f.write(content.data(), static_cast<std::streamsize>(content.size()));
-        f.close();
-        if (!f) {
-            std::error_code ignored;
-            fs::remove(tmp, ignored);
-            write_failed(path, "write error (disk full?)");
-        }
-    }
-    std::error_code ec;
-    fs::rename(tmp, path, ec);
-    if (ec) {
-        std::error_code ignored;
-        fs::remove(tmp, ignored);
-        write_failed(path, ec.message());
-    }
-}
-
 std::vector<fs::path> write_output_folder(const fs::path& dir,
                                           const std::vector<TidyTable>& tables,
                                           const RunInfo& info) {
     check_tables(tables);
     // Render everything first: a bad table fails before any file is touched.
     const std::string json = to_summary_json(tables, info);
-    std::error_code ec;
-    fs::create_directories(dir, ec);
-    if (ec || !fs::is_directory(dir)) {
-        throw InputError({dir.string(), 0, 0, "out"},
-                         "cannot create output folder: " + (ec ? ec.message() : "not a folder"));
+    try {
+        io::ensure_directory(dir);
+    } catch (const Error& e) {
+        throw InputError({dir.string(), 0, 0, "out"}, e.what());
     }
     std::vector<fs::path> written;
     for (const auto& t : tables) {
         const fs::path p = dir / (t.name + ".csv");
-        write_text_atomic(p, to_csv(t));
+        write_checked(p, to_csv(t));
         written.push_back(p);
     }
     const fs::path s = dir / "summary.json";
-    write_text_atomic(s, json);
+    write_checked(s, json);
     written.push_back(s);
     return written;
 }

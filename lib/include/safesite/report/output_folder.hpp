@@ -3,7 +3,8 @@
 /// Writers for the output folder of a run (design.md section 6, docs/formats.md "Outputs"):
 /// every table as `<dir>/<name>.csv` (RFC 4180) and all tables, with the run's metadata and
 /// the caution, as `<dir>/summary.json`. Every file is written to a temporary file in `dir`
-/// and then renamed over the target, so a reader never sees a half-written file.
+/// and then renamed over the target (io::write_file_atomic), so a reader never sees a
+/// half-written file.
 
 #include <filesystem>
 #include <string>
@@ -34,9 +35,5 @@ std::string to_summary_json(const std::vector<TidyTable>& tables, const RunInfo&
 std::vector<std::filesystem::path> write_output_folder(const std::filesystem::path& dir,
                                                        const std::vector<TidyTable>& tables,
                                                        const RunInfo& info);
-
-/// Write `content` to `path` atomically (temporary file in the same folder, then rename).
-/// \throws InputError (key "out") when the file cannot be written.
-void write_text_atomic(const std::filesystem::path& path, const std::string& content);
 
 }  // namespace safesite::report
