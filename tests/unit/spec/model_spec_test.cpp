@@ -152,3 +152,13 @@ TEST_CASE("a truth file with fixed coefficients needs no census", "[spec][unit]"
     CHECK(m.perturbation.survival_changes.empty());
     CHECK(m.size_transform == SizeTransform::log1p);
 }
+
+TEST_CASE("census reading options come from the model file", "[spec][unit]") {
+    const ModelSpec m = read_model_spec(fixture("model_fitted.toml"));
+    const auto o = to_census_options(m);
+    CHECK(o.columns.at("size") == "rosette_cm");
+    CHECK(o.transform == SizeTransform::log);
+    CHECK(o.microsites == m.microsites.labels);
+    CHECK(o.missing_row == MissingRowPolicy::notfound);
+    CHECK(o.seedling_flag);
+}

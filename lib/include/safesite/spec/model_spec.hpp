@@ -15,6 +15,7 @@
 #include <string_view>
 #include <vector>
 
+#include "safesite/census/census.hpp"
 #include "safesite/census/missing_row_policy.hpp"
 #include "safesite/census/size_transform.hpp"
 #include "safesite/error.hpp"
@@ -131,6 +132,10 @@ ModelSpec read_model_spec(const std::filesystem::path& file);
 
 /// Validate model-file text; `file` names it in errors and anchors relative paths.
 ModelSpec parse_model_spec(std::string_view text, const std::filesystem::path& file);
+
+/// The census reading options of a model: column map, size transform, microsite labels,
+/// missing-row policy and seedling flag.
+census::CensusOptions to_census_options(const ModelSpec& spec);
 
 const char* to_string(QuadratureRule r) noexcept;
 const char* to_string(EvictionPolicy e) noexcept;
