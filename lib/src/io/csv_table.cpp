@@ -150,13 +150,15 @@ private:
                      "end (write a quote inside a quoted field as \"\")");
             return out;
         }
+        const std::size_t start = m_pos;
         while (!at_end() && m_text[m_pos] != ',' && !at_line_end()) {
             if (m_text[m_pos] == '"')
                 fail(m_line, column,
                      "quote inside an unquoted field; expected the whole field in quotes with "
                      "inner quotes doubled (RFC 4180)");
-            out += m_text[m_pos++];
+            ++m_pos;
         }
+        out.assign(m_text.substr(start, m_pos - start));
         return out;
     }
 
