@@ -599,8 +599,8 @@ ArrivalSpec read_arrival(const TableReader& r, const MicrositeSpec& ms, const Co
 }
 
 ScenarioSpec read_scenario(const TableReader& r, const MicrositeSpec& ms, const Context& ctx) {
-    r.allow({"name", "fractions", "cover_factor", "trapping_odds_factor", "hazard_factor",
-             "exposure_days", "establishment_factor"});
+    r.allow({"name", "fractions", "fraction_shares", "cover_factor", "trapping_odds_factor",
+             "hazard_factor", "exposure_days", "relanding", "establishment_factor"});
     ScenarioSpec s;
     s.at = r.location();
     s.name = r.required_string("name", "a name for the scenario");
@@ -621,18 +621,34 @@ ScenarioSpec read_scenario(const TableReader& r, const MicrositeSpec& ms, const 
     if (auto m = r.number_map("establishment_factor"))
         s.establishment_factor =
             label_map(r, "establishment_factor", *m, ms, false, false, nonneg);
+    if (auto m = r.number_map("fraction_shares")) {
+        s.fraction_shares = label_map(r, "fraction_shares", *m, ms, false, false, nonneg);
+        double total = 0.0;
+        for (const auto& [label, share] : s.fraction_shares) total += share;
+        if (!(total > 0.0))
+            r.fail("fraction_shares", "'" + r.key("fraction_shares") +
+                                          "' is all zero; expected at least one share > 0");
+    }
     if (auto d = r.number("exposure_days")) {
         r.require_at_least("exposure_days", *d, 0.0);
         s.exposure_days = d;
     }
-    if (s.fractions && s.changes_chain())
-        r.fail_here("scenario '" + s.name + "' gives fractions and also changes the arrival "
-                    "chain (cover, trapping, hazard or exposure); the fractions would replace "
-                    "the chain, so give one or the other");
-    if (!s.fractions && !s.changes_chain() && s.establishment_factor.empty())
+    if (auto p = r.number("relanding")) {
+        r.require_in("relanding", *p, 0.0, 1.0);
+        s.relanding = p;
+    }
+    const bool direct = s.fractions || !s.fraction_shares.empty();
+    if (s.fractions && !s.fraction_shares.empty())
+        r.fail_here("scenario '" + s.name + "' gives both fractions and fraction_shares; "
+                    "give one");
+    if (direct && s.changes_chain())
+        r.fail_here("scenario '" + s.name + "' gives arrival fractions and also changes the "
+                    "arrival chain (cover, trapping, hazard, exposure or re-landing); the "
+                    "fractions would replace the chain, so give one or the other");
+    if (!direct && !s.changes_chain() && s.establishment_factor.empty())
         r.fail_here("scenario '" + s.name + "' changes nothing; expected at least one of "
-                    "fractions, cover_factor, trapping_odds_factor, hazard_factor, "
-                    "exposure_days, establishment_factor");
+                    "fractions, fraction_shares, cover_factor, trapping_odds_factor, "
+                    "hazard_factor, exposure_days, relanding, establishment_factor");
     return s;
 }
 

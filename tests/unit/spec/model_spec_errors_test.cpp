@@ -338,6 +338,18 @@ TEST_CASE("arrival, scenario and perturbation rules", "[spec][unit]") {
               .key() == "scenario[1]");
     CHECK_NOTHROW(parse_model_spec(
         experiments + "[[scenario]]\nname = \"x\"\nhazard_factor = { gravel = 0.5 }\n", "m.toml"));
+    CHECK(refused(experiments + "[[scenario]]\nname = \"x\"\nrelanding = 1.2\n").key() ==
+          "scenario[1].relanding");
+    CHECK(refused(experiments + "[[scenario]]\nname = \"x\"\nrelanding = 0.2\n"
+                                "fraction_shares = { gravel = 1 }\n")
+              .key() == "scenario[1]");
+    CHECK(refused(k_base + "[[scenario]]\nname = \"x\"\nfraction_shares = { gravel = 0 }\n")
+              .key() == "scenario[1].fraction_shares");
+    CHECK(refused(k_base + "[[scenario]]\nname = \"x\"\nfraction_shares = { gravel = 1 }\n"
+                           "fractions = { gravel = 1, cushion = 0, tussock = 0 }\n")
+              .key() == "scenario[1]");
+    CHECK(refused(k_base + "[[scenario]]\nname = \"x\"\nrelanding = 0.5\n").key() ==
+          "scenario[1]");  // a chain change without experiments
     // Juveniles by seedling flag need the flag.
     CHECK(refused(k_base + "[census]\nseedling_flag = false\n[perturbation]\nsurvival_changes = "
                            "[0.1]\n")

@@ -117,7 +117,12 @@ TEST_CASE("an experiments model file is read into typed values", "[spec][unit]")
     CHECK(a.retention_formula == "left ~ microsite");
     CHECK(a.retention_groups == std::vector<std::string>{"station"});
 
-    REQUIRE(m.scenarios.size() == 2);
+    REQUIRE(m.scenarios.size() == 4);
+    CHECK(m.scenarios[2].relanding.value() == 0.9);
+    CHECK(m.scenarios[2].changes_chain());
+    CHECK(m.scenarios[3].fraction_shares.at("gravel") == 1.0);
+    CHECK(m.scenarios[3].fraction_shares.size() == 1);
+    CHECK_FALSE(m.scenarios[3].changes_chain());
     CHECK(m.scenarios[0].cover_factor.at("cushion") == 0.5);
     CHECK(m.scenarios[0].changes_chain());
     CHECK(m.scenarios[1].trapping_odds_factor.at("cushion") == 2.0);
