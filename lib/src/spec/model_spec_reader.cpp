@@ -2,6 +2,7 @@
 #include <algorithm>
 #include <cmath>
 #include <fstream>
+#include <limits>
 #include <set>
 #include <sstream>
 
@@ -333,17 +334,22 @@ std::map<std::string, double> label_map(const TableReader& r, std::string_view k
     return out;
 }
 
+/// A value check for label_map: lo ≤ x ≤ hi, else a SpecError at the value saying `expected`.
+auto range_check(const std::string& file, double lo, double hi, std::string expected) {
+    return [file, lo, hi, expected](const std::string& where, double x, const toml::node& n) {
+        if (!(x >= lo && x <= hi))
+            throw SpecError({file, n.source().begin.line, n.source().begin.column, where},
+                            "'" + where + "' = " + fmt_number(x) + " is out of range; expected " +
+                                expected);
+    };
+}
+
 /// Fractions over all microsites: each in [0, 1], summing to 1 within 1e-9. Label order.
 std::vector<double> read_fractions(const TableReader& r, std::string_view k,
                                    const std::vector<std::pair<std::string, double>>& m,
                                    const MicrositeSpec& ms, const std::string& file) {
-    auto check = [&](const std::string& where, double x, const toml::node& n) {
-        if (!(x >= 0.0 && x <= 1.0))
-            throw SpecError({file, n.source().begin.line, n.source().begin.column, where},
-                            "'" + where + "' = " + fmt_number(x) +
-                                " is out of range; expected 0 ≤ value ≤ 1");
-    };
-    const auto map = label_map(r, k, m, ms, true, false, check);
+    const auto map =
+        label_map(r, k, m, ms, true, false, range_check(file, 0.0, 1.0, "0 ≤ value ≤ 1"));
     std::vector<double> out;
     double sum = 0.0;
     for (const auto& l : ms.labels) {
@@ -559,14 +565,8 @@ ArrivalSpec read_arrival(const TableReader& r, const MicrositeSpec& ms, const Co
         a.cover_from_census = true;
     } else {
         auto m = r.number_map("cover");
-        auto check = [&](const std::string& where, double x, const toml::node& n) {
-            if (!(x >= 0.0 && x <= 1.0))
-                throw SpecError({ctx.file, n.source().begin.line, n.source().begin.column,
-                                 where},
-                                "'" + where + "' = " + fmt_number(x) +
-                                    " is out of range; expected 0 ≤ cover ≤ 1");
-        };
-        a.cover = label_map(r, "cover", *m, ms, true, true, check);
+        a.cover = label_map(r, "cover", *m, ms, true, true,
+                            range_check(ctx.file, 0.0, 1.0, "0 ≤ cover ≤ 1"));
         double sum = 0.0;
         for (const auto& [l, c] : a.cover) sum += c;
         if (sum > 1.0 + 1e-9)
@@ -606,12 +606,8 @@ ScenarioSpec read_scenario(const TableReader& r, const MicrositeSpec& ms, const 
     s.name = r.required_string("name", "a name for the scenario");
     if (auto m = r.number_map("fractions"))
         s.fractions = read_fractions(r, "fractions", *m, ms, ctx.file);
-    auto nonneg = [&](const std::string& where, double x, const toml::node& n) {
-        if (!(x >= 0.0))
-            throw SpecError({ctx.file, n.source().begin.line, n.source().begin.column, where},
-                            "'" + where + "' = " + fmt_number(x) +
-                                " is out of range; expected a factor ≥ 0");
-    };
+    const auto nonneg = range_check(ctx.file, 0.0, std::numeric_limits<double>::infinity(),
+                                    "a factor ≥ 0");
     if (auto m = r.number_map("cover_factor"))
         s.cover_factor = label_map(r, "cover_factor", *m, ms, false, true, nonneg);
     if (auto m = r.number_map("trapping_odds_factor"))
@@ -771,14 +767,9 @@ ModelSpec read_document(const toml::table& doc, const std::filesystem::path& fil
         if (spec.establishment.method == EstablishmentMethod::fixed) {
             auto m = r->number_map("values");
             if (!m) r->missing("values", "establishment probability per microsite");
-            auto check = [&](const std::string& where, double x, const toml::node& n) {
-                if (!(x >= 0.0 && x <= 1.0))
-                    throw SpecError({ctx.file, n.source().begin.line, n.source().begin.column,
-                                     where},
-                                    "'" + where + "' = " + fmt_number(x) +
-                                        " is out of range; expected a probability 0 ≤ p ≤ 1");
-            };
-            const auto map = label_map(*r, "values", *m, spec.microsites, true, false, check);
+            const auto map =
+                label_map(*r, "values", *m, spec.microsites, true, false,
+                          range_check(ctx.file, 0.0, 1.0, "a probability 0 ≤ p ≤ 1"));
             for (const auto& l : spec.microsites.labels)
                 spec.establishment.values.push_back(map.at(l));
         } else if (r->has("values")) {
