@@ -648,6 +648,156 @@ ScenarioSpec read_scenario(const TableReader& r, const MicrositeSpec& ms, const 
     return s;
 }
 
+DataSpec read_data(const TableReader& r, const std::filesystem::path& file) {
+    r.allow({"census", "trapping", "retention", "columns", "trapping_columns",
+             "retention_columns"});
+    DataSpec d;
+    auto path = [&](const char* k) -> std::optional<std::filesystem::path> {
+        auto p = r.string(k);
+        if (!p) return std::nullopt;
+        if (p->empty()) r.fail(k, "'" + r.key(k) + "' must not be empty");
+        return resolve(file, *p);
+    };
+    d.census = path("census");
+    d.trapping = path("trapping");
+    d.retention = path("retention");
+    if (auto m = r.string_map("columns", k_census_columns)) d.census_columns = *m;
+    if (auto m = r.string_map("trapping_columns", k_trapping_columns)) d.trapping_columns = *m;
+    if (auto m = r.string_map("retention_columns", k_retention_columns))
+        d.retention_columns = *m;
+    return d;
+}
+
+MeshSpec read_mesh(const TableReader& r) {
+    r.allow({"points", "rule", "eviction", "lower", "upper", "margin"});
+    MeshSpec mesh;
+    if (auto n = r.integer("points")) {
+        if (*n < 2)
+            r.fail("points", "'mesh.points' = " + std::to_string(*n) +
+                                 " is out of range; expected an integer ≥ 2");
+        mesh.points = static_cast<std::size_t>(*n);
+    }
+    if (auto s = r.choice("rule", {"midpoint", "gauss-legendre"}))
+        mesh.rule = *s == "midpoint" ? QuadratureRule::midpoint : QuadratureRule::gauss_legendre;
+    if (auto s = r.choice("eviction", {"boundary", "discard"}))
+        mesh.eviction = *s == "boundary" ? EvictionPolicy::boundary : EvictionPolicy::discard;
+    mesh.lower = r.number("lower");
+    mesh.upper = r.number("upper");
+    if (mesh.lower && mesh.upper && !(*mesh.lower < *mesh.upper))
+        r.fail("upper", "'mesh.upper' = " + fmt_number(*mesh.upper) +
+                            " is not above 'mesh.lower' = " + fmt_number(*mesh.lower) +
+                            "; expected lower < upper");
+    if (auto m = r.number("margin")) {
+        r.require_at_least("margin", *m, 0.0);
+        mesh.margin = *m;
+    }
+    return mesh;
+}
+
+MicrositeSpec read_microsites(const TableReader& r) {
+    r.allow({"labels", "bare"});
+    MicrositeSpec ms;
+    auto labels = r.strings("labels");
+    if (!labels) r.missing("labels", "the microsite labels, e.g. [\"gravel\", \"cushion\"]");
+    if (labels->empty()) r.fail("labels", "'microsites.labels' is empty");
+    std::set<std::string> seen;
+    for (const auto& l : *labels)
+        if (!seen.insert(l).second) r.fail("labels", "'microsites.labels' lists '" + l + "' twice");
+    ms.labels = *labels;
+    ms.bare = r.required_string("bare", "the bare-soil microsite label");
+    auto idx = ms.index(ms.bare);
+    if (!idx)
+        r.fail("bare", "'microsites.bare' = \"" + ms.bare + "\" is not one of the labels" +
+                           io::did_you_mean(ms.bare, *labels) + "; expected one of: " +
+                           list(*labels));
+    ms.bare_index = *idx;
+    return ms;
+}
+
+EstablishmentSpec read_establishment(const TableReader& r, const MicrositeSpec& ms,
+                                     const Context& ctx) {
+    r.allow({"method", "values"});
+    EstablishmentSpec e;
+    if (auto m = r.choice("method", {"census", "fixed"}))
+        e.method = *m == "census" ? EstablishmentMethod::census : EstablishmentMethod::fixed;
+    if (e.method == EstablishmentMethod::fixed) {
+        auto m = r.number_map("values");
+        if (!m) r.missing("values", "establishment probability per microsite");
+        const auto map = label_map(r, "values", *m, ms, true, false,
+                                   range_check(ctx.file, 0.0, 1.0, "a probability 0 ≤ p ≤ 1"));
+        for (const auto& l : ms.labels) e.values.push_back(map.at(l));
+    } else if (r.has("values")) {
+        r.fail("values", "'establishment.values' is used only with method = \"fixed\"");
+    }
+    return e;
+}
+
+PerturbationSpec read_perturbation(const TableReader& r, bool census_flags_seedlings) {
+    r.allow({"juvenile", "juvenile_size_below", "survival_changes"});
+    PerturbationSpec p;
+    if (auto j = r.choice("juvenile", {"seedling", "size"}))
+        p.juvenile = *j == "seedling" ? JuvenileRule::seedling : JuvenileRule::size;
+    p.juvenile_size_below = r.number("juvenile_size_below");
+    if (p.juvenile == JuvenileRule::size && !p.juvenile_size_below)
+        r.missing("juvenile_size_below", "the transformed size below which a plant is juvenile");
+    if (p.juvenile == JuvenileRule::seedling && p.juvenile_size_below)
+        r.fail("juvenile_size_below",
+               "'perturbation.juvenile_size_below' is used only with juvenile = \"size\"");
+    if (p.juvenile == JuvenileRule::seedling && !census_flags_seedlings)
+        r.fail("juvenile", "'perturbation.juvenile' = \"seedling\" needs the census to mark "
+                           "seedlings (census.seedling_flag = true); use juvenile = \"size\"");
+    auto changes = r.numbers("survival_changes");
+    if (!changes) r.missing("survival_changes", "proportional changes, e.g. [-0.2, 0.0, 0.2]");
+    for (double c : *changes)
+        if (!(c >= -1.0))
+            r.fail("survival_changes", "'perturbation.survival_changes' holds " +
+                                           fmt_number(c) + "; expected changes ≥ -1");
+    p.survival_changes = *changes;
+    return p;
+}
+
+UncertaintySpec read_uncertainty(const TableReader& r) {
+    r.allow({"replicates", "seed", "level"});
+    UncertaintySpec u;
+    if (auto n = r.integer("replicates")) {
+        if (*n < 0) r.fail("replicates", "'uncertainty.replicates' must be ≥ 0");
+        u.replicates = static_cast<std::size_t>(*n);
+    }
+    if (auto n = r.integer("seed")) {
+        if (*n < 0) r.fail("seed", "'uncertainty.seed' must be ≥ 0");
+        u.seed = static_cast<std::uint64_t>(*n);
+    }
+    if (auto l = r.number("level")) {
+        if (!(*l > 0.0 && *l < 1.0))
+            r.fail("level", "'uncertainty.level' = " + fmt_number(*l) +
+                                " is out of range; expected 0 < level < 1");
+        u.level = *l;
+    }
+    return u;
+}
+
+/// Rules across tables: the data files each part of the model needs.
+void check_data_needs(const ModelSpec& spec, const Context& ctx) {
+    const bool have_census = spec.data.census.has_value();
+    for (const auto& rate : spec.rates)
+        if (!rate.is_fixed() && !have_census)
+            throw SpecError(rate.at, "rate '" + rate.name +
+                                         "' is fitted (no coefficients) but data.census is "
+                                         "not given");
+    if (spec.establishment.method == EstablishmentMethod::census && !have_census)
+        throw SpecError({ctx.file, 0, 0, "establishment.method"},
+                        "establishment.method = \"census\" (the default) needs data.census; "
+                        "give data.census or method = \"fixed\" with values");
+    if (spec.arrival.method == ArrivalMethod::experiments) {
+        if (!spec.data.trapping || !spec.data.retention)
+            throw SpecError(spec.arrival.at,
+                            "arrival.method = \"experiments\" needs data.trapping and "
+                            "data.retention");
+        if (spec.arrival.cover_from_census && !have_census)
+            throw SpecError(spec.arrival.at, "arrival.cover = \"census\" needs data.census");
+    }
+}
+
 ModelSpec read_document(const toml::table& doc, const std::filesystem::path& file,
                         Context& ctx) {
     ModelSpec spec;
@@ -672,25 +822,7 @@ ModelSpec read_document(const toml::table& doc, const std::filesystem::path& fil
         if (!t) r.missing("size_transform", "none, log, log1p or sqrt");
         spec.size_transform = *census::parse_size_transform(*t);
     }
-    // [data]
-    if (auto r = root.table("data")) {
-        r->allow({"census", "trapping", "retention", "columns", "trapping_columns",
-                  "retention_columns"});
-        for (const char* k : {"census", "trapping", "retention"}) {
-            auto p = r->string(k);
-            if (!p) continue;
-            if (p->empty()) r->fail(k, "'" + r->key(k) + "' must not be empty");
-            const auto path = resolve(file, *p);
-            if (std::string_view(k) == "census") spec.data.census = path;
-            if (std::string_view(k) == "trapping") spec.data.trapping = path;
-            if (std::string_view(k) == "retention") spec.data.retention = path;
-        }
-        if (auto m = r->string_map("columns", k_census_columns)) spec.data.census_columns = *m;
-        if (auto m = r->string_map("trapping_columns", k_trapping_columns))
-            spec.data.trapping_columns = *m;
-        if (auto m = r->string_map("retention_columns", k_retention_columns))
-            spec.data.retention_columns = *m;
-    }
+    if (auto r = root.table("data")) spec.data = read_data(*r, file);
     // [census]
     if (auto r = root.table("census")) {
         r->allow({"missing_row", "seedling_flag"});
@@ -698,53 +830,8 @@ ModelSpec read_document(const toml::table& doc, const std::filesystem::path& fil
             spec.census.missing_row = *census::parse_missing_row_policy(*p);
         if (auto b = r->boolean("seedling_flag")) spec.census.seedling_flag = *b;
     }
-    // [mesh]
-    if (auto r = root.table("mesh")) {
-        r->allow({"points", "rule", "eviction", "lower", "upper", "margin"});
-        if (auto n = r->integer("points")) {
-            if (*n < 2)
-                r->fail("points", "'mesh.points' = " + std::to_string(*n) +
-                                      " is out of range; expected an integer ≥ 2");
-            spec.mesh.points = static_cast<std::size_t>(*n);
-        }
-        if (auto s = r->choice("rule", {"midpoint", "gauss-legendre"}))
-            spec.mesh.rule = *s == "midpoint" ? QuadratureRule::midpoint
-                                              : QuadratureRule::gauss_legendre;
-        if (auto s = r->choice("eviction", {"boundary", "discard"}))
-            spec.mesh.eviction =
-                *s == "boundary" ? EvictionPolicy::boundary : EvictionPolicy::discard;
-        spec.mesh.lower = r->number("lower");
-        spec.mesh.upper = r->number("upper");
-        if (spec.mesh.lower && spec.mesh.upper && !(*spec.mesh.lower < *spec.mesh.upper))
-            r->fail("upper", "'mesh.upper' = " + fmt_number(*spec.mesh.upper) +
-                                 " is not above 'mesh.lower' = " +
-                                 fmt_number(*spec.mesh.lower) + "; expected lower < upper");
-        if (auto m = r->number("margin")) {
-            r->require_at_least("margin", *m, 0.0);
-            spec.mesh.margin = *m;
-        }
-    }
-    // [microsites]
-    {
-        const TableReader r = required_table("microsites", "labels and the bare one");
-        r.allow({"labels", "bare"});
-        auto labels = r.strings("labels");
-        if (!labels) r.missing("labels", "the microsite labels, e.g. [\"gravel\", \"cushion\"]");
-        if (labels->empty()) r.fail("labels", "'microsites.labels' is empty");
-        std::set<std::string> seen;
-        for (const auto& l : *labels)
-            if (!seen.insert(l).second)
-                r.fail("labels", "'microsites.labels' lists '" + l + "' twice");
-        spec.microsites.labels = *labels;
-        spec.microsites.bare = r.required_string("bare", "the bare-soil microsite label");
-        auto idx = spec.microsites.index(spec.microsites.bare);
-        if (!idx)
-            r.fail("bare", "'microsites.bare' = \"" + spec.microsites.bare +
-                               "\" is not one of the labels" +
-                               io::did_you_mean(spec.microsites.bare, *labels) +
-                               "; expected one of: " + list(*labels));
-        spec.microsites.bare_index = *idx;
-    }
+    if (auto r = root.table("mesh")) spec.mesh = read_mesh(*r);
+    spec.microsites = read_microsites(required_table("microsites", "labels and the bare one"));
     // [rates.*]
     {
         const TableReader r = required_table("rates", "one table per vital rate");
@@ -758,24 +845,8 @@ ModelSpec read_document(const toml::table& doc, const std::filesystem::path& fil
             spec.rates.push_back(read_rate(*t, name, ctx));
         }
     }
-    // [establishment]
-    if (auto r = root.table("establishment")) {
-        r->allow({"method", "values"});
-        if (auto m = r->choice("method", {"census", "fixed"}))
-            spec.establishment.method =
-                *m == "census" ? EstablishmentMethod::census : EstablishmentMethod::fixed;
-        if (spec.establishment.method == EstablishmentMethod::fixed) {
-            auto m = r->number_map("values");
-            if (!m) r->missing("values", "establishment probability per microsite");
-            const auto map =
-                label_map(*r, "values", *m, spec.microsites, true, false,
-                          range_check(ctx.file, 0.0, 1.0, "a probability 0 ≤ p ≤ 1"));
-            for (const auto& l : spec.microsites.labels)
-                spec.establishment.values.push_back(map.at(l));
-        } else if (r->has("values")) {
-            r->fail("values", "'establishment.values' is used only with method = \"fixed\"");
-        }
-    }
+    if (auto r = root.table("establishment"))
+        spec.establishment = read_establishment(*r, spec.microsites, ctx);
     // [arrival]
     {
         const TableReader r = required_table("arrival", "arrival fractions or experiments");
@@ -800,52 +871,9 @@ ModelSpec read_document(const toml::table& doc, const std::filesystem::path& fil
             spec.scenarios.push_back(std::move(s));
         }
     }
-    // [perturbation]
-    if (auto r = root.table("perturbation")) {
-        r->allow({"juvenile", "juvenile_size_below", "survival_changes"});
-        if (auto j = r->choice("juvenile", {"seedling", "size"}))
-            spec.perturbation.juvenile =
-                *j == "seedling" ? JuvenileRule::seedling : JuvenileRule::size;
-        spec.perturbation.juvenile_size_below = r->number("juvenile_size_below");
-        if (spec.perturbation.juvenile == JuvenileRule::size &&
-            !spec.perturbation.juvenile_size_below)
-            r->missing("juvenile_size_below", "the transformed size below which a plant is "
-                                              "juvenile");
-        if (spec.perturbation.juvenile == JuvenileRule::seedling &&
-            spec.perturbation.juvenile_size_below)
-            r->fail("juvenile_size_below",
-                    "'perturbation.juvenile_size_below' is used only with juvenile = \"size\"");
-        if (spec.perturbation.juvenile == JuvenileRule::seedling && !spec.census.seedling_flag)
-            r->fail("juvenile", "'perturbation.juvenile' = \"seedling\" needs the census to "
-                                "mark seedlings (census.seedling_flag = true); use juvenile = "
-                                "\"size\"");
-        auto changes = r->numbers("survival_changes");
-        if (!changes)
-            r->missing("survival_changes", "proportional changes, e.g. [-0.2, 0.0, 0.2]");
-        for (double c : *changes)
-            if (!(c >= -1.0))
-                r->fail("survival_changes", "'perturbation.survival_changes' holds " +
-                                                fmt_number(c) + "; expected changes ≥ -1");
-        spec.perturbation.survival_changes = *changes;
-    }
-    // [uncertainty]
-    if (auto r = root.table("uncertainty")) {
-        r->allow({"replicates", "seed", "level"});
-        if (auto n = r->integer("replicates")) {
-            if (*n < 0) r->fail("replicates", "'uncertainty.replicates' must be ≥ 0");
-            spec.uncertainty.replicates = static_cast<std::size_t>(*n);
-        }
-        if (auto n = r->integer("seed")) {
-            if (*n < 0) r->fail("seed", "'uncertainty.seed' must be ≥ 0");
-            spec.uncertainty.seed = static_cast<std::uint64_t>(*n);
-        }
-        if (auto l = r->number("level")) {
-            if (!(*l > 0.0 && *l < 1.0))
-                r->fail("level", "'uncertainty.level' = " + fmt_number(*l) +
-                                     " is out of range; expected 0 < level < 1");
-            spec.uncertainty.level = *l;
-        }
-    }
+    if (auto r = root.table("perturbation"))
+        spec.perturbation = read_perturbation(*r, spec.census.seedling_flag);
+    if (auto r = root.table("uncertainty")) spec.uncertainty = read_uncertainty(*r);
     // [output]
     spec.output.dir = resolve(file, "out");
     if (auto r = root.table("output")) {
@@ -857,26 +885,7 @@ ModelSpec read_document(const toml::table& doc, const std::filesystem::path& fil
         if (auto b = r->boolean("print_coordinates")) spec.output.print_coordinates = *b;
     }
 
-    // Rules across tables: the data each part needs.
-    const bool have_census = spec.data.census.has_value();
-    for (const auto& rate : spec.rates)
-        if (!rate.is_fixed() && !have_census)
-            throw SpecError(rate.at, "rate '" + rate.name +
-                                         "' is fitted (no coefficients) but data.census is "
-                                         "not given");
-    if (spec.establishment.method == EstablishmentMethod::census && !have_census)
-        throw SpecError({ctx.file, 0, 0, "establishment.method"},
-                        "establishment.method = \"census\" (the default) needs data.census; "
-                        "give data.census or method = \"fixed\" with values");
-    if (spec.arrival.method == ArrivalMethod::experiments) {
-        if (!spec.data.trapping || !spec.data.retention)
-            throw SpecError(spec.arrival.at,
-                            "arrival.method = \"experiments\" needs data.trapping and "
-                            "data.retention");
-        if (spec.arrival.cover_from_census && !have_census)
-            throw SpecError(spec.arrival.at, "arrival.cover = \"census\" needs data.census");
-    }
-
+    check_data_needs(spec, ctx);
     spec.keys.assign(ctx.keys.begin(), ctx.keys.end());
     return spec;
 }
