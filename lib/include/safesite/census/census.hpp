@@ -15,6 +15,8 @@
 #include <utility>
 #include <vector>
 
+#include "safesite/census/census_record.hpp"
+#include "safesite/census/census_summary.hpp"
 #include "safesite/census/missing_row_policy.hpp"
 #include "safesite/census/size_transform.hpp"
 #include "safesite/census/validation_report.hpp"
@@ -29,68 +31,6 @@ struct CensusOptions {
     std::vector<std::string> microsites;   ///< known labels, in model order
     MissingRowPolicy missing_row = MissingRowPolicy::error;
     bool seedling_flag = true;             ///< the file has a `seedling` column
-};
-
-enum class Status { alive, dead, notfound };
-
-/// One plant in one census year.
-struct CensusRecord {
-    std::string plant;
-    int year = 0;
-    std::string plot;
-    std::string microsite;
-    std::size_t microsite_index = 0;  ///< position in CensusOptions::microsites
-    Status status = Status::alive;
-    double size = 0.0;                ///< transformed size h(x); NaN unless alive
-    double raw_size = 0.0;            ///< size as in the file; NaN when empty
-    bool flowered = false;            ///< alive rows only
-    std::optional<std::int64_t> seeds;  ///< empty = not counted
-    bool seedling = false;            ///< the seedling flag of the row
-    std::optional<double> x, y;       ///< coordinates, read for validation only
-    std::size_t line = 0;             ///< file line; 0 for a row added by missing_row = notfound
-};
-
-/// Counts for one census year t.
-struct YearSummary {
-    int year = 0;
-    bool next_censused = false;       ///< year t + 1 is a census year
-    std::size_t alive = 0;            ///< plants recorded alive in t
-    std::vector<std::size_t> alive_by_microsite;  ///< model label order
-    std::size_t flowering = 0;
-    std::int64_t seeds_counted = 0;   ///< sum of the seed counts recorded in t
-    std::size_t flowering_without_count = 0;  ///< flowered, seed count empty
-    std::size_t transitions = 0;      ///< t → t+1 transitions (alive at t, alive/dead at t+1)
-    std::size_t excluded_notfound = 0;  ///< alive at t, not found at t+1 (not in transitions)
-    /// Recruits first seen at t + 1 attributed to t, per microsite (label order).
-    std::vector<std::size_t> recruits_by_microsite;
-};
-
-/// A missing census year between two census years.
-struct CensusGap {
-    int from = 0;  ///< last census year before the gap
-    int to = 0;    ///< next census year
-};
-
-/// What the census holds.
-struct CensusSummary {
-    std::size_t rows = 0;    ///< data rows of the file
-    std::size_t plants = 0;  ///< distinct plant tags
-    std::vector<int> years;  ///< census years, ascending
-    std::vector<CensusGap> gaps;
-    std::vector<YearSummary> per_year;  ///< one per census year, ascending
-    std::size_t transitions = 0;
-    std::size_t recruits = 0;               ///< attributed to a transition year
-    std::size_t unattributed_recruits = 0;  ///< seedlings in their plot's first census year
-    /// Smallest and largest transformed size over all alive rows (NaN when none): the data
-    /// range from which mesh bounds are derived (L = min − margin·range, U = max + margin·range).
-    double size_min = 0.0;
-    double size_max = 0.0;
-
-    /// Share of the alive plants in each microsite in census year `year` (label order; sums
-    /// to 1 unless no plant is alive). Throws UsageError for a year not in the census.
-    std::vector<double> microsite_share(int year) const;
-    /// Share of alive plant-years in each microsite over all census years (label order).
-    std::vector<double> microsite_share() const;
 };
 
 /// A read and validated census.
@@ -135,8 +75,5 @@ Census read_census(const io::CsvTable& table, CensusOptions options);
 /// Read, type and validate a census file; throws DataError for malformed CSV, a missing
 /// column, or when the report has an error (the error's reason is the whole report).
 Census load_census(const std::filesystem::path& file, CensusOptions options);
-
-/// "alive", "dead", "notfound".
-const char* to_string(Status s) noexcept;
 
 }  // namespace safesite::census
