@@ -70,6 +70,24 @@ TEST_CASE("transitions t → t+1 of the fixture census", "[census][unit]") {
     CHECK(r.categorical("microsite").values == std::vector<std::string>{"cushion", "cushion"});
 }
 
+TEST_CASE("the alive plant-years table of the fixture census", "[census][unit]") {
+    const auto data = build_transitions(read(base()));
+    const auto& p = data.plants;
+    CHECK(p.names() == std::vector<std::string>{"size", "flowered", "seeds", "microsite", "year",
+                                                "plot", "plant", "seedling"});
+    // Alive rows: A 2018, A 2019, B 2018, B 2020, C 2019, C 2020, D 2018-2020, E 2020 = 10.
+    REQUIRE(p.rows() == 10);
+    CHECK(p.categorical("plant").values ==
+          std::vector<std::string>{"A", "A", "B", "B", "C", "C", "D", "D", "D", "E"});
+    CHECK(p.categorical("year").levels == std::vector<std::string>{"2018", "2019", "2020"});
+    // B 2020 flowered without a count: its seeds are NaN; it has no transition (no 2021).
+    CHECK(p.numeric("flowered")[3] == 1.0);
+    CHECK(is_nan(p.numeric("seeds")[3]));
+    CHECK(p.numeric("seeds")[8] == 0.0);    // D 2020 counted 0
+    CHECK(p.numeric("seedling")[9] == 1.0);  // E, flagged at its first record
+    CHECK(p.numeric("size")[9] == std::log(0.3));
+}
+
 TEST_CASE("census summary counts of the fixture census", "[census][unit]") {
     const Census c = read(base());
     const auto& s = c.summary();

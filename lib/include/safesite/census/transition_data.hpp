@@ -29,9 +29,17 @@ namespace safesite::census {
 /// attributed to the transition t → t + 1. Columns: `size` (numeric, transformed), `microsite`
 /// (categorical, model labels), `year` (categorical, the label of year **t**), `plot`
 /// (categorical).
+///
+/// `plants`: one row per plant recorded alive in a census year t, whatever its fate at t + 1
+/// (also plants not found at t + 1 and plants in the last census year): the seeds produced at
+/// t come from all of them. Columns: `size`, `flowered`, `seeds` (NaN when not counted),
+/// `microsite`, `year` (label of t; levels ascending), `plot`, `plant`, `seedling` — with the
+/// meanings of the transitions table. Use it for the seeds produced per year (observed counts,
+/// and the flowering plants without a count whose seeds are predicted).
 struct TransitionData {
     stats::Table transitions;
     stats::Table recruits;
+    stats::Table plants;
 };
 
 /// Build the tables. Throws UsageError when the census has validation errors (callers load
