@@ -1,6 +1,7 @@
 // The model file round-trips (issue 4, "Checks"): every key shown in the model-file block of
 // docs/formats.md (also the commented-out ones) is read by the spec reader from at least one
-// tested fixture, and every key a fixture uses is documented there.
+// tested fixture, every key a fixture uses is documented there, and the block (its uncommented
+// lines) is itself a valid model file.
 #include <catch2/catch.hpp>
 
 #include <filesystem>
@@ -16,16 +17,12 @@ namespace fs = std::filesystem;
 
 namespace {
 
-/// Key paths of the ```toml block under "## Model file": section headers set the prefix,
-/// `key = ...` lines (possibly behind a leading '#') give the keys.
-std::set<std::string> documented_keys() {
+/// The text of the ```toml block under "## Model file (TOML)", as written.
+std::string documented_block() {
     std::ifstream in(fs::path(SAFESITE_SOURCE_DIR) / "docs" / "formats.md");
     REQUIRE(in);
-    std::string line, prefix;
+    std::string line, text;
     bool in_section = false, in_block = false;
-    std::set<std::string> keys;
-    const std::regex header(R"(^\[\[?([A-Za-z0-9_.]+)\]\]?)");
-    const std::regex key(R"(^#?\s*([A-Za-z_][A-Za-z0-9_]*)\s*=)");
     while (std::getline(in, line)) {
         if (line.rfind("## ", 0) == 0) in_section = line == "## Model file (TOML)";
         if (!in_section) continue;
@@ -34,7 +31,20 @@ std::set<std::string> documented_keys() {
             in_block = line == "```toml";
             continue;
         }
-        if (!in_block) continue;
+        if (in_block) text += line + "\n";
+    }
+    return text;
+}
+
+/// Key paths of the block: section headers set the prefix, `key = ...` lines (possibly
+/// behind a leading '#') give the keys.
+std::set<std::string> documented_keys() {
+    std::istringstream in(documented_block());
+    std::string line, prefix;
+    std::set<std::string> keys;
+    const std::regex header(R"(^\[\[?([A-Za-z0-9_.]+)\]\]?)");
+    const std::regex key(R"(^#?\s*([A-Za-z_][A-Za-z0-9_]*)\s*=)");
+    while (std::getline(in, line)) {
         std::smatch m;
         if (std::regex_search(line, m, header)) {
             prefix = m[1];
@@ -88,4 +98,14 @@ TEST_CASE("every key documented in docs/formats.md is read from a tested fixture
         INFO("fixture key " << k);
         CHECK(documented_generic.count(generic(k)) == 1);
     }
+}
+
+TEST_CASE("the model-file example of docs/formats.md is itself a valid model file",
+          "[spec][unit]") {
+    const std::string block = documented_block();
+    REQUIRE(block.size() > 1000);
+    const auto spec = safesite::spec::parse_model_spec(block, "docs/model.toml");
+    CHECK(spec.microsites.labels.size() == 3);
+    CHECK(spec.scenarios.size() == 2);
+    CHECK(spec.rates.size() == 5);
 }
