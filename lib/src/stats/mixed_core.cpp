@@ -131,17 +131,19 @@ void fill_random_effects(MixedFit& fit, const RandomDesign& re,
                          const std::vector<GroupingFactor>& groups, const Eigen::VectorXd& u,
                          double scale2) {
     const Eigen::VectorXd b = re.lambda_times(u);
-    const int q = re.q();
-    Eigen::VectorXd diag(q), offdiag = Eigen::VectorXd::Zero(q);
-    constexpr int kChunk = 256;
-    for (int first = 0; first < q; first += kChunk) {
-        const int count = std::min(kChunk, q - first);
-        const Eigen::MatrixXd inv = re.inverse_columns(first, count);
-        for (int j = 0; j < count; ++j) {
-            diag[first + j] = inv(first + j, j);
-            if (first + j + 1 < q) offdiag[first + j] = inv(first + j + 1, j);
+    // Diagonal 1×1 or 2×2 blocks of A⁻¹, one per level.
+    std::vector<std::pair<int, int>> pairs;
+    for (const detail::RandomBlock& bl : re.blocks())
+        for (int lv = 0; lv < bl.levels; ++lv) {
+            const int c = bl.first_col + lv * bl.width;
+            pairs.emplace_back(c, c);
+            if (bl.width == 2) {
+                pairs.emplace_back(c + 1, c + 1);
+                pairs.emplace_back(c, c + 1);
+            }
         }
-    }
+    const Eigen::VectorXd inv = re.inverse_entries(pairs);
+    std::size_t next = 0;
     fit.random_effects.clear();
     for (std::size_t k = 0; k < re.blocks().size(); ++k) {
         const detail::RandomBlock& bl = re.blocks()[k];
@@ -157,10 +159,10 @@ void fill_random_effects(MixedFit& fit, const RandomDesign& re,
         for (int lv = 0; lv < bl.levels; ++lv) {
             const int c = bl.first_col + lv * bl.width;
             Eigen::MatrixXd Ainv(bl.width, bl.width);
-            Ainv(0, 0) = diag[c];
+            Ainv(0, 0) = inv[static_cast<Eigen::Index>(next++)];
             if (bl.width == 2) {
-                Ainv(1, 1) = diag[c + 1];
-                Ainv(1, 0) = Ainv(0, 1) = offdiag[c];
+                Ainv(1, 1) = inv[static_cast<Eigen::Index>(next++)];
+                Ainv(1, 0) = Ainv(0, 1) = inv[static_cast<Eigen::Index>(next++)];
             }
             const Eigen::MatrixXd V = scale2 * L * Ainv * L.transpose();
             for (int t = 0; t < bl.width; ++t) {
@@ -310,12 +312,12 @@ void fit_laplace(MixedFit& fit, RandomDesign& re, const Eigen::MatrixXd& X,
     if (nt == 1) {
         r1 = detail::minimise_brent(
             [&](double t) { return stage1(Eigen::VectorXd::Constant(1, t)); }, 5.0,
-            opt.max_evaluations);
+            opt.max_evaluations, 14);
     } else {
         const auto start = re.theta_start();
         r1 = detail::minimise_bobyqa(stage1, Eigen::Map<const Eigen::VectorXd>(start.data(), nt),
-                                     re.theta_lower(), Eigen::VectorXd::Constant(nt, 0.25), 1e-6,
-                                     1e-8, opt.max_evaluations);
+                                     re.theta_lower(), Eigen::VectorXd::Constant(nt, 0.25), 1e-4,
+                                     1e-6, opt.max_evaluations);
     }
     engine.joint(r1.x);
     const Eigen::VectorXd beta1 = engine.beta();
@@ -340,7 +342,7 @@ void fit_laplace(MixedFit& fit, RandomDesign& re, const Eigen::MatrixXd& X,
     std::vector<double> lower = re.theta_lower();
     lower.resize(nt + p, -kInf);
     detail::OptimiseResult r2 =
-        detail::minimise_bobyqa(stage2, x0, lower, step, 1e-10, 1e-12, opt.max_evaluations);
+        detail::minimise_bobyqa(stage2, x0, lower, step, 1e-8, 1e-10, opt.max_evaluations);
     Eigen::VectorXd theta = r2.x.head(nt);
     const Eigen::VectorXd beta = r2.x.tail(p);
     snap_to_boundary(re, theta, r2.f, [&](const Eigen::VectorXd& th) {

@@ -107,6 +107,16 @@ double ConditionalResponse::minus_two_log_lik(const Eigen::VectorXd& eta) const 
     if (m_family == CondFamily::binomial) {
         for (Eigen::Index i = 0; i < eta.size(); ++i) {
             const double y = m_y[i], f = m_n[i] - m_y[i];
+            if (m_link == CondLink::logit) {
+                // log μ = −log(1 + e^{−η}), log(1 − μ) = log μ − η: one log and one exp per
+                // row. log(1 + t) with t = e^{−|η|} ≤ 1 has an absolute error below 1e-16, all
+                // a sum of log-likelihood terms needs (log1p costs twice as much here).
+                const double e = eta[i];
+                const double l = std::log(1.0 + std::exp(-std::abs(e)));
+                const double lm = e < 0.0 ? e - l : -l;
+                ll += y * lm + f * (lm - e);
+                continue;
+            }
             if (y > 0.0) ll += y * log_mu(eta[i]);
             if (f > 0.0) ll += f * log_one_minus_mu(eta[i]);
         }
@@ -119,13 +129,18 @@ double ConditionalResponse::minus_two_log_lik(const Eigen::VectorXd& eta) const 
 WorkingValues ConditionalResponse::working(const Eigen::VectorXd& eta) const {
     WorkingValues out{Eigen::VectorXd(eta.size()), Eigen::VectorXd(eta.size())};
     for (Eigen::Index i = 0; i < eta.size(); ++i) {
-        const double d = dmu_deta(eta[i]);
         if (m_family == CondFamily::binomial) {
+            const double n = m_n[i];
+            if (!(n > 0.0)) {
+                out.w[i] = 0.0;
+                out.z[i] = eta[i];
+                continue;
+            }
             // Clamp μ away from 0 and 1 so that V(μ) = μ(1 − μ) stays positive.
             const double mu = std::clamp(mean(eta[i]), kEps, 1.0 - kEps);
-            const double n = m_n[i];
-            out.w[i] = n > 0.0 ? n * d * d / (mu * (1.0 - mu)) : 0.0;
-            out.z[i] = n > 0.0 ? eta[i] + (m_y[i] / n - mu) / d : eta[i];
+            const double d = m_link == CondLink::logit ? mu * (1.0 - mu) : dmu_deta(eta[i]);
+            out.w[i] = n * d * d / (mu * (1.0 - mu));
+            out.z[i] = eta[i] + (m_y[i] / n - mu) / d;
         } else {
             const double mu = std::max(std::exp(eta[i]), kEps);
             out.w[i] = mu;

@@ -27,6 +27,11 @@ public:
 
     CondFamily family() const noexcept { return m_family; }
     CondLink link() const noexcept { return m_link; }
+    /// Canonical link (binomial–logit, Poisson–log): Fisher scoring is then Newton's method.
+    bool canonical() const noexcept {
+        return (m_family == CondFamily::binomial && m_link == CondLink::logit) ||
+               (m_family == CondFamily::poisson && m_link == CondLink::log);
+    }
     /// −2 Σ log p(y_i | η_i), including the constants (binomial coefficients, log y!).
     double minus_two_log_lik(const Eigen::VectorXd& eta) const;
     WorkingValues working(const Eigen::VectorXd& eta) const;

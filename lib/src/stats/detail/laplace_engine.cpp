@@ -81,8 +81,11 @@ double LaplaceEngine::conditional(const Eigen::VectorXd& theta, const Eigen::Vec
 // each solving A u + B β = Λ'Z'W(z − offset) (and, with β, the second block row), with step
 // halving whenever pdev would rise. At the mode the Laplace approximation is
 //   −2 log L ≈ pdev(ũ, β) + log|A(ũ)|        [Bates2015, eq. 52; Breslow1993].
-// Convergence: the last full Newton step moved no coordinate by more than 1e-10·(1 + |x|);
-// Newton's quadratic convergence then leaves an error far below that (common practice).
+// Convergence: the last full step moved no coordinate by more than tol·max(1, |x|), with
+// tol = 1e-7 for canonical links — PIRLS is then Newton's method, whose quadratic
+// convergence leaves an error of order tol² — and tol = 1e-10 otherwise (Fisher scoring
+// converges only linearly). Common practice; the outer finite differences need the
+// criterion to about 1e-12.
 double LaplaceEngine::pirls(bool with_beta) {
     const int p = static_cast<int>(m_X.cols());
     const int q = m_re.q();
@@ -105,6 +108,7 @@ double LaplaceEngine::pirls(bool with_beta) {
     double pdev = m_resp.minus_two_log_lik(eta) + m_u.squaredNorm();
     bool converged = false;
     constexpr int kMaxIter = 100;
+    const double tol = m_resp.canonical() ? 1e-7 : 1e-10;
     for (int it = 0; it < kMaxIter; ++it) {
         ++m_pirls_iterations;
         const WorkingValues wv = m_resp.working(eta);
@@ -170,7 +174,7 @@ double LaplaceEngine::pirls(bool with_beta) {
             step = std::max(step, std::abs(beta_c[j] - m_beta[j]));
             scale = std::max(scale, std::abs(beta_c[j]));
         }
-        converged = t == 1.0 && step < 1e-10 * scale;
+        converged = t == 1.0 && step < tol * scale;
         m_u = u_c;
         m_beta = beta_c;
         eta = eta_c;

@@ -10,7 +10,7 @@
 namespace safesite::stats::detail {
 
 OptimiseResult minimise_brent(const std::function<double(double)>& f, double upper,
-                              int max_evaluations) {
+                              int max_evaluations, int bits) {
     OptimiseResult out;
     out.x.resize(1);
     int evaluations = 0;
@@ -20,9 +20,9 @@ OptimiseResult minimise_brent(const std::function<double(double)>& f, double upp
     };
     for (int widen = 0; widen <= 6; ++widen) {
         std::uintmax_t iters = static_cast<std::uintmax_t>(max_evaluations);
-        // 26 bits (half the double mantissa): the location of a smooth minimum is only
-        // determined to about √ε by the criterion, and Boost caps the request there.
-        const auto r = boost::math::tools::brent_find_minima(counted, 0.0, upper, 26, iters);
+        // At most 26 bits (half the double mantissa): the location of a smooth minimum is
+        // only determined to about √ε by the criterion, and Boost caps the request there.
+        const auto r = boost::math::tools::brent_find_minima(counted, 0.0, upper, bits, iters);
         out.x[0] = r.first;
         out.f = r.second;
         out.converged = iters < static_cast<std::uintmax_t>(max_evaluations);

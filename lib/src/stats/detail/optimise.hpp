@@ -25,8 +25,9 @@ struct OptimiseResult {
 
 /// Brent's method on [0, upper], widening `upper` fourfold (up to 6 times) while the
 /// minimum sits at its top end.
+/// `bits`: requested precision of the minimiser's location (at most 26 for double).
 OptimiseResult minimise_brent(const std::function<double(double)>& f, double upper,
-                              int max_evaluations);
+                              int max_evaluations, int bits = 26);
 
 /// BOBYQA from x0 with lower bounds (−∞ allowed) and per-coordinate initial steps.
 OptimiseResult minimise_bobyqa(const Objective& f, const Eigen::VectorXd& x0,

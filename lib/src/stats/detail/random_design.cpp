@@ -238,10 +238,47 @@ Eigen::VectorXd RandomDesign::lambda_times(const Eigen::VectorXd& u) const {
     return b;
 }
 
-Eigen::MatrixXd RandomDesign::inverse_columns(int first, int count) const {
-    Eigen::MatrixXd e = Eigen::MatrixXd::Zero(m_q, count);
-    for (int j = 0; j < count; ++j) e(first + j, j) = 1.0;
-    return m_chol.solve(e);
+Eigen::VectorXd RandomDesign::inverse_entries(const std::vector<std::pair<int, int>>& pairs) const {
+    const auto& L = m_chol.matrixL().nestedExpression();  // strictly lower part, unit diagonal
+    const Eigen::VectorXd& D = m_chol.vectorD();
+    const auto& perm = m_chol.permutationP().indices();
+    // Parent of each node in the elimination tree: the smallest row index of its column.
+    std::vector<int> parent(m_q, -1);
+    for (int k = 0; k < m_q; ++k)
+        for (Eigen::SparseMatrix<double>::InnerIterator it(L, k); it; ++it)
+            if (it.row() > k && (parent[k] < 0 || it.row() < parent[k])) parent[k] = static_cast<int>(it.row());
+    std::vector<double> za(m_q, 0.0), zb(m_q, 0.0);
+    std::vector<int> path;
+    // Forward solve L z = e_j along the path j → root; returns the path in `path`.
+    auto path_solve = [&](int j, std::vector<double>& z) {
+        path.clear();
+        z[j] = 1.0;
+        for (int k = j; k >= 0; k = parent[k]) {
+            path.push_back(k);
+            const double zk = z[k];
+            if (zk == 0.0) continue;
+            for (Eigen::SparseMatrix<double>::InnerIterator it(L, k); it; ++it)
+                if (it.row() > k) z[it.row()] -= it.value() * zk;
+        }
+    };
+    Eigen::VectorXd out(static_cast<Eigen::Index>(pairs.size()));
+    std::vector<int> path_a;
+    for (std::size_t i = 0; i < pairs.size(); ++i) {
+        const int a = perm[pairs[i].first], b = perm[pairs[i].second];
+        path_solve(a, za);
+        path_a = path;
+        double s = 0.0;
+        if (a == b) {
+            for (int k : path_a) s += za[k] * za[k] / D[k];
+        } else {
+            path_solve(b, zb);
+            for (int k : path_a) s += za[k] * zb[k] / D[k];
+            for (int k : path) zb[k] = 0.0;
+        }
+        for (int k : path_a) za[k] = 0.0;
+        out[static_cast<Eigen::Index>(i)] = s;
+    }
+    return out;
 }
 
 }  // namespace safesite::stats::detail

@@ -8,6 +8,7 @@
 /// well defined when a variance component is zero.
 
 #include <cstddef>
+#include <utility>
 #include <vector>
 
 #include <Eigen/Core>
@@ -67,8 +68,11 @@ public:
     Eigen::MatrixXd times_t(const Eigen::VectorXd& w, const Eigen::MatrixXd& R) const;
     /// b = Λu (length q).
     Eigen::VectorXd lambda_times(const Eigen::VectorXd& u) const;
-    /// Columns first..first+count-1 of A⁻¹ (q × count), from the last factorisation.
-    Eigen::MatrixXd inverse_columns(int first, int count) const;
+    /// Entries (A⁻¹)_{ab} for the listed index pairs, from the last factorisation.
+    /// With P A P' = L D L', (A⁻¹)_{ab} = Σ_k z_k^a z_k^b / D_k where z^a = L⁻¹ P e_a; z^a is
+    /// non-zero only on the path from P·a to the root of the elimination tree, so each entry
+    /// costs the product of two path lengths, not a full solve (common practice).
+    Eigen::VectorXd inverse_entries(const std::vector<std::pair<int, int>>& pairs) const;
 
 private:
     int m_rows = 0;
