@@ -1,11 +1,13 @@
 #include "safesite/arrival/binomial_fit.hpp"
 
 #include <cmath>
+#include <map>
 
 #include <Eigen/Cholesky>
 
 #include "safesite/error.hpp"
 #include "safesite/stats/design.hpp"
+#include "safesite/stats/mixed_model.hpp"
 
 namespace safesite::arrival {
 namespace {
@@ -85,6 +87,49 @@ void irls_binomial(const stats::Design& d, stats::Link link, BinomialFit& fit) {
     if (!fit.converged) fit.warnings.push_back("IRLS did not converge in 100 iterations");
 }
 
+// Binomial GLMM with a random intercept per grouping column, by the Laplace approximation of
+// safesite::stats::fit_mixed_core (docs/methods/mixed-models.md).
+void fit_grouped(const stats::Design& d, const stats::Table& data, stats::Link link,
+                 const std::vector<std::string>& groups, BinomialFit& fit) {
+    std::vector<stats::GroupingFactor> factors;
+    for (const auto& g : groups) {
+        if (!data.is_categorical(g))
+            throw UsageError("binomial fit of \"" + fit.formula + "\": grouping column \"" + g +
+                             "\" is not a categorical column of the data");
+        const auto& column = data.categorical(g);
+        stats::GroupingFactor f;
+        f.name = g;
+        std::map<std::string, int> index;
+        for (std::size_t r : d.rows) {
+            const std::string& label = column.values[r];
+            auto [it, fresh] = index.emplace(label, static_cast<int>(f.level_names.size()));
+            if (fresh) f.level_names.push_back(label);
+            f.level.push_back(it->second);
+        }
+        factors.push_back(std::move(f));
+    }
+    stats::MixedOptions options;
+    options.family = stats::Family::binomial;
+    options.link = link;
+    options.groups = groups;
+    const stats::MixedFit m =
+        stats::fit_mixed_core(d.X, d.y, d.trials, d.offset, factors, options, d.column_names);
+    fit.coefficients = m.fixed;
+    fit.standard_errors = m.fixed_se;
+    fit.covariance = m.fixed_cov;
+    fit.groups = groups;
+    for (const auto& g : groups) {
+        double sd = 0.0;
+        for (const auto& vc : m.variance_components)
+            if (vc.group == g && vc.term == "(Intercept)") sd = vc.sd;
+        fit.group_sd.push_back(sd);
+    }
+    fit.log_likelihood = m.log_likelihood;
+    fit.aic = m.aic;
+    fit.converged = m.converged;
+    fit.warnings = m.warnings;
+}
+
 }  // namespace
 
 Eigen::VectorXd BinomialFit::linear_predictor(const stats::Table& data) const {
@@ -119,9 +164,11 @@ BinomialFit fit_binomial(const stats::Table& data, const std::string& formula, s
     fit.spec = d.spec;
     fit.names = d.column_names;
     fit.nobs = static_cast<int>(d.X.rows());
-    if (!groups.empty())
-        throw UsageError("binomial fit: grouping factors need mixed models (not yet available)");
-    irls_binomial(d, link, fit);
+    if (groups.empty()) {
+        irls_binomial(d, link, fit);
+    } else {
+        fit_grouped(d, data, link, groups, fit);
+    }
     return fit;
 }
 

@@ -118,3 +118,46 @@ TEST_CASE("simulated experiments recover hazards and arrival fractions", "[arriv
     CHECK(a_true.fractions.maxCoeff() > 0.15);
     CHECK(a_true.lost < 0.75);
 }
+
+TEST_CASE("trapping with a neighbour random intercept: the GLMM recovers σ_b and τ_f",
+          "[arrival][unit]") {
+    // 60 neighbours × 3 seed types × 20 seeds, neighbour SD σ_b = 0.6 on the logit scale.
+    // Precision (common practice, from memory): se(σ̂) ≈ σ/√(2·groups) ≈ 0.055 from the
+    // between-neighbour spread alone, inflated by the binomial noise of 60 seeds per neighbour
+    // to roughly 0.08; 0.25 is ≥ 3 se. τ_f is a marginal mean over sizes and neighbours, with
+    // se ≈ 0.025 (600 focal seeds per form, inflated by σ_b): 0.08 is ≥ 3 se.
+    const std::vector<std::string> forms = {"cushion", "tussock"};
+    const std::vector<std::string> types = {"plumed", "winged", "smooth"};
+    const std::uint64_t seed = 20261202;
+    arr::TrappingTruth trap;
+    trap.intercept = -1.5;
+    trap.log_size_slope = 0.5;
+    trap.form_effect["tussock"] = -0.7;
+    trap.seed_type_effect["winged"] = -0.4;
+    trap.seed_type_effect["smooth"] = 0.6;
+    trap.neighbour_sd = 0.6;
+    const auto neighbours = arr::simulate_neighbours(forms, 30, 2.5, 0.5, seed);
+    const auto trials = arr::simulate_trapping(trap, {neighbours, types, 20}, seed);
+    const auto fit = arr::fit_trapping(arr::trapping_table(trials, forms),
+                                       arr::default_trapping_formula, {"neighbour"});
+    REQUIRE(fit.group_sd.size() == 1);
+    INFO("fitted neighbour SD " << fit.group_sd[0]);
+    CHECK(fit.group_sd[0] == Approx(0.6).margin(0.25));
+    CHECK(fit.total_group_sd() == Approx(fit.group_sd[0]).margin(1e-15));
+
+    const auto census = arr::simulate_neighbours(forms, 200, 2.5, 0.5, seed, 1);
+    std::map<std::string, std::vector<double>> sizes;
+    for (const auto& n : census) sizes[n.form].push_back(n.size);
+    const auto tau = arr::trapping_by_form(fit, "plumed", sizes);
+    for (const auto& form : forms) {
+        Eigen::VectorXd eta(static_cast<Eigen::Index>(sizes[form].size()));
+        for (Eigen::Index i = 0; i < eta.size(); ++i) {
+            const double p = arr::trapping_probability(trap, form, "plumed",
+                                                       sizes[form][static_cast<std::size_t>(i)]);
+            eta[i] = std::log(p / (1 - p));
+        }
+        const double truth = arr::average_trapping(eta, trap.neighbour_sd);
+        INFO(form << ": fitted tau " << tau.at(form) << ", true " << truth);
+        CHECK(tau.at(form) == Approx(truth).margin(0.08));
+    }
+}
