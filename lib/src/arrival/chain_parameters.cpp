@@ -5,6 +5,7 @@
 #include <set>
 #include <string>
 
+#include "arrival/detail/csv_text.hpp"
 #include "safesite/error.hpp"
 
 namespace safesite::arrival {
@@ -15,12 +16,6 @@ std::string number(double x) {
     char buffer[32];
     std::snprintf(buffer, sizeof buffer, "%.10g", x);
     return buffer;
-}
-
-std::string label_list(const std::vector<std::string>& labels) {
-    std::string out;
-    for (const auto& l : labels) out += (out.empty() ? "" : ", ") + ("\"" + l + "\"");
-    return out;
 }
 
 void check_length(const Eigen::VectorXd& v, std::size_t m, const char* name) {
@@ -79,11 +74,49 @@ void validate(const ChainParameters& p) {
                          "; expected a finite number of days ≥ 0");
 }
 
+ChainParameters make_chain_parameters(const std::vector<std::string>& microsites,
+                                      const std::string& bare,
+                                      const std::map<std::string, double>& cover,
+                                      const std::map<std::string, double>& trapping,
+                                      const std::map<std::string, double>& hazard_per_day,
+                                      double relanding, double exposure_days) {
+    ChainParameters p;
+    p.microsites = microsites;
+    p.bare = microsite_index(p, bare);
+    const auto m = static_cast<Eigen::Index>(microsites.size());
+    p.cover = Eigen::VectorXd::Zero(m);
+    p.trapping = Eigen::VectorXd::Zero(m);
+    p.hazard_per_day = Eigen::VectorXd::Zero(m);
+    p.relanding = relanding;
+    p.exposure_days = exposure_days;
+    // Every label given must be a microsite (and not bare for cover/trapping); every needed
+    // label must be given.
+    auto fill = [&](const std::map<std::string, double>& values, Eigen::VectorXd& out,
+                    const char* what, bool bare_too) {
+        for (const auto& [label, x] : values) {
+            const std::size_t i = microsite_index(p, label);
+            if (i == p.bare && !bare_too)
+                throw UsageError(std::string("arrival chain: ") + what + " given for the "
+                                 "bare-soil microsite \"" + label + "\"");
+            out[static_cast<Eigen::Index>(i)] = x;
+        }
+        for (std::size_t i = 0; i < microsites.size(); ++i)
+            if ((bare_too || i != p.bare) && values.count(microsites[i]) == 0)
+                throw UsageError(std::string("arrival chain: no ") + what + " for microsite \"" +
+                                 microsites[i] + "\"");
+    };
+    fill(cover, p.cover, "cover", false);
+    fill(trapping, p.trapping, "trapping probability", false);
+    fill(hazard_per_day, p.hazard_per_day, "departure hazard", true);
+    validate(p);
+    return p;
+}
+
 std::size_t microsite_index(const ChainParameters& p, const std::string& label) {
     for (std::size_t i = 0; i < p.microsites.size(); ++i)
         if (p.microsites[i] == label) return i;
     throw UsageError("arrival chain: unknown microsite \"" + label + "\"; the microsites are " +
-                     label_list(p.microsites));
+                     detail::quoted_list(p.microsites));
 }
 
 Eigen::VectorXd landing_split(const ChainParameters& p) {

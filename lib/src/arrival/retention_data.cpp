@@ -13,12 +13,6 @@
 namespace safesite::arrival {
 namespace {
 
-std::string quoted_list(const std::vector<std::string>& v) {
-    std::string out;
-    for (const auto& s : v) out += (out.empty() ? "\"" : ", \"") + s + "\"";
-    return out;
-}
-
 // What is known about a seed from its rows so far.
 struct SeedState {
     std::size_t first_row = 0;
@@ -54,7 +48,7 @@ RetentionData retention_from_csv(const io::CsvTable& csv,
         if (known.count(c.microsite) == 0)
             throw csv.error_at(r, c_micro, "seed \"" + c.seed + "\": microsite \"" +
                                                c.microsite + "\" is not a microsite; expected "
-                                               "one of " + quoted_list(microsites));
+                                               "one of " + detail::quoted_list(microsites));
         c.seed_type = csv.text(r, c_type);
         c.day = csv.real(r, c_day);
         if (c.day < 0.0)
@@ -170,12 +164,8 @@ stats::Table interval_table(const std::vector<RetentionInterval>& intervals,
         log_length.push_back(std::log(iv.interval_days));
         present.insert(iv.microsite);
     }
-    std::vector<std::string> levels;
-    for (const auto& m : microsites)
-        if (present.count(m)) levels.push_back(m);
-    for (const auto& m : present)
-        if (std::find(levels.begin(), levels.end(), m) == levels.end())
-            throw UsageError("interval table: microsite \"" + m + "\" is not a microsite");
+    std::vector<std::string> levels =
+        detail::ordered_levels(present, microsites, "interval table: microsite");
     stats::Table table;
     table.add_categorical("seed", std::move(seed));
     table.add_categorical("station", std::move(station));

@@ -10,15 +10,6 @@
 #include "safesite/io/csv_table.hpp"
 
 namespace safesite::arrival {
-namespace {
-
-std::string quoted_list(const std::vector<std::string>& v) {
-    std::string out;
-    for (const auto& s : v) out += (out.empty() ? "\"" : ", \"") + s + "\"";
-    return out;
-}
-
-}  // namespace
 
 TrappingData trapping_from_csv(const io::CsvTable& csv, const std::vector<std::string>& forms) {
     const std::size_t c_neighbour = csv.require("neighbour");
@@ -42,7 +33,7 @@ TrappingData trapping_from_csv(const io::CsvTable& csv, const std::vector<std::s
         if (known.count(t.form) == 0)
             throw csv.error_at(r, c_form, "form \"" + t.form + "\" of neighbour \"" +
                                               t.neighbour + "\" is not a neighbour microsite; "
-                                              "expected one of " + quoted_list(forms));
+                                              "expected one of " + detail::quoted_list(forms));
         t.neighbour_size = csv.real(r, c_size);
         if (!(t.neighbour_size > 0.0))
             throw csv.error_at(r, c_size, "neighbour_size \"" + csv.cell(r, c_size) +
@@ -99,14 +90,9 @@ stats::Table trapping_table(const std::vector<TrappingTrial>& trials,
         trapped.push_back(static_cast<double>(t.trapped));
         present.insert(t.form);
     }
-    // Form levels in the user's microsite order (the first present form is the reference
-    // level of treatment contrasts); a form without trials would give an all-zero column.
-    std::vector<std::string> form_levels;
-    for (const auto& f : forms)
-        if (present.count(f)) form_levels.push_back(f);
-    for (const auto& f : present)
-        if (std::find(form_levels.begin(), form_levels.end(), f) == form_levels.end())
-            throw UsageError("trapping table: form \"" + f + "\" is not among the given forms");
+    // Form levels in the user's microsite order.
+    std::vector<std::string> form_levels =
+        detail::ordered_levels(present, forms, "trapping table: form");
     stats::Table table;
     table.add_categorical("neighbour", std::move(neighbour));
     table.add_categorical("form", std::move(form), std::move(form_levels));

@@ -4,6 +4,7 @@
 #include <catch2/catch.hpp>
 
 #include <cmath>
+#include <map>
 #include <random>
 
 #include "safesite/arrival/arrival_chain.hpp"
@@ -25,6 +26,19 @@ ChainParameters three_microsites() {
     p.hazard_per_day = Eigen::Vector3d(0.08, 0.01, 0.02);
     p.relanding = 0.6;
     p.exposure_days = 150.0;
+    return p;
+}
+
+// Bare soil and one shrub form: ℓ = (0.8, 0.2), h = (0.05, 0.004) per day.
+ChainParameters bare_and_shrub(double relanding, double exposure_days) {
+    ChainParameters p;
+    p.microsites = {"bare", "shrub"};
+    p.bare = 0;
+    p.cover = Eigen::Vector2d(0.0, 0.4);
+    p.trapping = Eigen::Vector2d(0.0, 0.5);
+    p.hazard_per_day = Eigen::Vector2d(0.05, 0.004);
+    p.relanding = relanding;
+    p.exposure_days = exposure_days;
     return p;
 }
 
@@ -91,14 +105,7 @@ TEST_CASE("one microsite: closed form exp(−h(1−ρ)T), self-transitions handl
 }
 
 TEST_CASE("two microsites, no re-landing: a_m = ℓ_m exp(−h_m T)", "[arrival][unit]") {
-    ChainParameters p;
-    p.microsites = {"bare", "shrub"};
-    p.bare = 0;
-    p.cover = Eigen::Vector2d(0.0, 0.4);
-    p.trapping = Eigen::Vector2d(0.0, 0.5);
-    p.hazard_per_day = Eigen::Vector2d(0.05, 0.004);
-    p.relanding = 0.0;
-    p.exposure_days = 90.0;
+    const ChainParameters p = bare_and_shrub(0.0, 90.0);
     const ArrivalResult r = safesite::arrival::arrival_fractions(p);
     // Without re-landing the microsites do not exchange seeds: each decays on its own.
     CHECK(r.fractions[0] == Approx(0.8 * std::exp(-0.05 * 90.0)).margin(1e-13));
@@ -111,14 +118,7 @@ TEST_CASE("two microsites with re-landing: closed form by Sylvester's formula",
     // and exp(BT) = [e^{λ1 T}(B − λ2 I) − e^{λ2 T}(B − λ1 I)] / (λ1 − λ2) (Sylvester's
     // formula, any linear-algebra text); a(T) = ℓᵀ exp(BT). λ from the characteristic
     // polynomial λ² − tr(B) λ + det(B) = 0.
-    ChainParameters p;
-    p.microsites = {"bare", "shrub"};
-    p.bare = 0;
-    p.cover = Eigen::Vector2d(0.0, 0.4);
-    p.trapping = Eigen::Vector2d(0.0, 0.5);
-    p.hazard_per_day = Eigen::Vector2d(0.05, 0.004);
-    p.relanding = 0.7;
-    p.exposure_days = 120.0;
+    const ChainParameters p = bare_and_shrub(0.7, 120.0);
     const double l0 = 0.8, l1 = 0.2, h0 = 0.05, h1 = 0.004, rho = 0.7, t = 120.0;
     const double b00 = h0 * (rho * l0 - 1.0), b01 = h0 * rho * l1;
     const double b10 = h1 * rho * l0, b11 = h1 * (rho * l1 - 1.0);
@@ -286,4 +286,27 @@ TEST_CASE("chain parameters are validated", "[arrival][unit]") {
     p.cover[0] = 0.68;
     p.trapping[0] = 7.0;
     CHECK_NOTHROW(safesite::arrival::arrival_fractions(p));
+}
+
+TEST_CASE("chain parameters from labelled values", "[arrival][unit]") {
+    const ChainParameters p = safesite::arrival::make_chain_parameters(
+        {"gravel", "cushion", "tussock"}, "gravel", {{"cushion", 0.2}, {"tussock", 0.12}},
+        {{"cushion", 0.55}, {"tussock", 0.35}},
+        {{"gravel", 0.08}, {"cushion", 0.01}, {"tussock", 0.02}}, 0.6, 150.0);
+    const ChainParameters q = three_microsites();
+    CHECK(p.bare == q.bare);
+    CHECK(p.cover == q.cover);
+    CHECK(p.trapping == q.trapping);
+    CHECK(p.hazard_per_day == q.hazard_per_day);
+    auto make = [](std::map<std::string, double> cover, std::map<std::string, double> hazard) {
+        return safesite::arrival::make_chain_parameters(
+            {"gravel", "cushion"}, "gravel", cover, {{"cushion", 0.5}}, hazard, 0.5, 10.0);
+    };
+    CHECK_NOTHROW(make({{"cushion", 0.2}}, {{"gravel", 0.1}, {"cushion", 0.1}}));
+    CHECK_THROWS_AS(make({}, {{"gravel", 0.1}, {"cushion", 0.1}}), safesite::UsageError);
+    CHECK_THROWS_AS(make({{"cushion", 0.2}, {"gravel", 0.8}}, {{"gravel", 0.1}, {"cushion", 0.1}}),
+                    safesite::UsageError);
+    CHECK_THROWS_AS(make({{"cushion", 0.2}}, {{"gravel", 0.1}}), safesite::UsageError);
+    CHECK_THROWS_AS(make({{"cushion", 0.2}}, {{"gravel", 0.1}, {"moss", 0.1}}),
+                    safesite::UsageError);
 }

@@ -14,6 +14,7 @@
 #include <catch2/catch.hpp>
 
 #include <cmath>
+#include <map>
 
 #include "safesite/arrival/arrival_chain.hpp"
 #include "safesite/arrival/experiment_simulation.hpp"
@@ -22,20 +23,50 @@
 
 namespace arr = safesite::arrival;
 
-TEST_CASE("simulated experiments recover hazards and arrival fractions", "[arrival][unit]") {
-    const std::vector<std::string> microsites = {"gravel", "cushion", "tussock"};
-    const std::vector<std::string> forms = {"cushion", "tussock"};
-    const std::vector<std::string> types = {"plumed", "winged", "smooth"};
-    const std::uint64_t seed = 20261201;
+namespace {
 
-    // Trapping truth (invented): logit τ = −1.5 + 0.5 log(size) + form + seed type + b.
+const std::vector<std::string> forms = {"cushion", "tussock"};
+const std::vector<std::string> types = {"plumed", "winged", "smooth"};
+
+// Trapping truth (invented): logit τ = −1.5 + 0.5 log(size) + form + seed type + b, sd(b) = sd.
+arr::TrappingTruth invented_trapping(double neighbour_sd) {
     arr::TrappingTruth trap;
     trap.intercept = -1.5;
     trap.log_size_slope = 0.5;
     trap.form_effect["tussock"] = -0.7;
     trap.seed_type_effect["winged"] = -0.4;
     trap.seed_type_effect["smooth"] = 0.6;
-    trap.neighbour_sd = 0.0;  // fixed-effects world: the fit below has no random intercept
+    trap.neighbour_sd = neighbour_sd;
+    return trap;
+}
+
+// Sizes of 200 census neighbours per form (their own stream), for the size average of τ_f.
+std::map<std::string, std::vector<double>> census_sizes(std::uint64_t seed) {
+    std::map<std::string, std::vector<double>> sizes;
+    for (const auto& n : arr::simulate_neighbours(forms, 200, 2.5, 0.5, seed, 1))
+        sizes[n.form].push_back(n.size);
+    return sizes;
+}
+
+// True τ_f for the focal type: the truth's probabilities averaged over sizes and b.
+double true_tau(const arr::TrappingTruth& trap, const std::string& form,
+                const std::vector<double>& sizes) {
+    Eigen::VectorXd eta(static_cast<Eigen::Index>(sizes.size()));
+    for (Eigen::Index i = 0; i < eta.size(); ++i) {
+        const double p = arr::trapping_probability(trap, form, "plumed",
+                                                   sizes[static_cast<std::size_t>(i)]);
+        eta[i] = std::log(p / (1 - p));
+    }
+    return arr::average_trapping(eta, trap.neighbour_sd);
+}
+
+}  // namespace
+
+TEST_CASE("simulated experiments recover hazards and arrival fractions", "[arrival][unit]") {
+    const std::vector<std::string> microsites = {"gravel", "cushion", "tussock"};
+    const std::uint64_t seed = 20261201;
+    // Fixed-effects world: the trapping fit below has no random intercept.
+    const arr::TrappingTruth trap = invented_trapping(0.0);
     const auto neighbours = arr::simulate_neighbours(forms, 30, 2.5, 0.5, seed);
     const auto trials = arr::simulate_trapping(trap, {neighbours, types, 20}, seed);
 
@@ -70,10 +101,7 @@ TEST_CASE("simulated experiments recover hazards and arrival fractions", "[arriv
         CHECK(std::abs(h.hazard_per_day / truth - 1.0) < 0.15);
     }
 
-    // Neighbour sizes of the "census" (another stream), for the size average of τ_f.
-    const auto census = arr::simulate_neighbours(forms, 200, 2.5, 0.5, seed, 1);
-    std::map<std::string, std::vector<double>> sizes;
-    for (const auto& n : census) sizes[n.form].push_back(n.size);
+    auto sizes = census_sizes(seed);
     const auto tau_fit = arr::trapping_by_form(trap_fit, "plumed", sizes);
 
     arr::ChainParameters truth_chain;
@@ -87,13 +115,7 @@ TEST_CASE("simulated experiments recover hazards and arrival fractions", "[arriv
     arr::ChainParameters fitted_chain = truth_chain;
     for (int f : {1, 2}) {
         const std::string& form = microsites[static_cast<std::size_t>(f)];
-        Eigen::VectorXd eta(static_cast<Eigen::Index>(sizes[form].size()));
-        for (Eigen::Index i = 0; i < eta.size(); ++i) {
-            const double p = arr::trapping_probability(trap, form, "plumed",
-                                                       sizes[form][static_cast<std::size_t>(i)]);
-            eta[i] = std::log(p / (1 - p));
-        }
-        truth_chain.trapping[f] = arr::average_trapping(eta, trap.neighbour_sd);
+        truth_chain.trapping[f] = true_tau(trap, form, sizes[form]);
         fitted_chain.trapping[f] = tau_fit.at(form);
         INFO(form << ": fitted tau " << fitted_chain.trapping[f] << ", true "
                   << truth_chain.trapping[f]);
@@ -126,16 +148,8 @@ TEST_CASE("trapping with a neighbour random intercept: the GLMM recovers σ_b an
     // between-neighbour spread alone, inflated by the binomial noise of 60 seeds per neighbour
     // to roughly 0.08; 0.25 is ≥ 3 se. τ_f is a marginal mean over sizes and neighbours, with
     // se ≈ 0.025 (600 focal seeds per form, inflated by σ_b): 0.08 is ≥ 3 se.
-    const std::vector<std::string> forms = {"cushion", "tussock"};
-    const std::vector<std::string> types = {"plumed", "winged", "smooth"};
     const std::uint64_t seed = 20261202;
-    arr::TrappingTruth trap;
-    trap.intercept = -1.5;
-    trap.log_size_slope = 0.5;
-    trap.form_effect["tussock"] = -0.7;
-    trap.seed_type_effect["winged"] = -0.4;
-    trap.seed_type_effect["smooth"] = 0.6;
-    trap.neighbour_sd = 0.6;
+    const arr::TrappingTruth trap = invented_trapping(0.6);
     const auto neighbours = arr::simulate_neighbours(forms, 30, 2.5, 0.5, seed);
     const auto trials = arr::simulate_trapping(trap, {neighbours, types, 20}, seed);
     const auto fit = arr::fit_trapping(arr::trapping_table(trials, forms),
@@ -145,18 +159,10 @@ TEST_CASE("trapping with a neighbour random intercept: the GLMM recovers σ_b an
     CHECK(fit.group_sd[0] == Approx(0.6).margin(0.25));
     CHECK(fit.total_group_sd() == Approx(fit.group_sd[0]).margin(1e-15));
 
-    const auto census = arr::simulate_neighbours(forms, 200, 2.5, 0.5, seed, 1);
-    std::map<std::string, std::vector<double>> sizes;
-    for (const auto& n : census) sizes[n.form].push_back(n.size);
+    auto sizes = census_sizes(seed);
     const auto tau = arr::trapping_by_form(fit, "plumed", sizes);
     for (const auto& form : forms) {
-        Eigen::VectorXd eta(static_cast<Eigen::Index>(sizes[form].size()));
-        for (Eigen::Index i = 0; i < eta.size(); ++i) {
-            const double p = arr::trapping_probability(trap, form, "plumed",
-                                                       sizes[form][static_cast<std::size_t>(i)]);
-            eta[i] = std::log(p / (1 - p));
-        }
-        const double truth = arr::average_trapping(eta, trap.neighbour_sd);
+        const double truth = true_tau(trap, form, sizes[form]);
         INFO(form << ": fitted tau " << tau.at(form) << ", true " << truth);
         CHECK(tau.at(form) == Approx(truth).margin(0.08));
     }

@@ -48,6 +48,17 @@ struct ChainParameters {
     double exposure_days = 0.0;
 };
 
+/// Assemble ChainParameters from labelled values, as the model file and the fitted models give
+/// them: `cover` and `trapping` need every non-bare microsite (a bare entry is an error),
+/// `hazard_per_day` every microsite. Throws UsageError naming a missing or unknown label, and
+/// as validate().
+ChainParameters make_chain_parameters(const std::vector<std::string>& microsites,
+                                      const std::string& bare,
+                                      const std::map<std::string, double>& cover,
+                                      const std::map<std::string, double>& trapping,
+                                      const std::map<std::string, double>& hazard_per_day,
+                                      double relanding, double exposure_days);
+
 /// Check every precondition of ChainParameters (sizes, ranges, Σ cover ≤ 1 + 1e-12).
 /// Throws UsageError naming the parameter and the microsite label.
 void validate(const ChainParameters& params);

@@ -1,8 +1,13 @@
 #pragma once
 // Small helpers shared by the arrival CSV writers (private to lib/src/arrival).
 
+#include <algorithm>
 #include <cstdio>
+#include <set>
 #include <string>
+#include <vector>
+
+#include "safesite/error.hpp"
 
 namespace safesite::arrival::detail {
 
@@ -24,6 +29,29 @@ inline std::string csv_number(double x) {
     char buffer[40];
     std::snprintf(buffer, sizeof buffer, "%.10g", x);
     return buffer;
+}
+
+/// `"a", "b", "c"` for messages listing admissible labels.
+inline std::string quoted_list(const std::vector<std::string>& labels) {
+    std::string out;
+    for (const auto& l : labels) out += (out.empty() ? "\"" : ", \"") + l + "\"";
+    return out;
+}
+
+/// Factor levels for a regression table: the labels of `order` that occur in `present`, in
+/// that order (the first is the reference level of treatment contrasts; a label without rows
+/// would give an all-zero design column). A present label outside `order` is a UsageError
+/// naming `what` (e.g. "trapping table: form").
+inline std::vector<std::string> ordered_levels(const std::set<std::string>& present,
+                                               const std::vector<std::string>& order,
+                                               const std::string& what) {
+    std::vector<std::string> levels;
+    for (const auto& l : order)
+        if (present.count(l)) levels.push_back(l);
+    for (const auto& l : present)
+        if (std::find(levels.begin(), levels.end(), l) == levels.end())
+            throw UsageError(what + " \"" + l + "\" is not among " + quoted_list(order));
+    return levels;
 }
 
 }  // namespace safesite::arrival::detail
