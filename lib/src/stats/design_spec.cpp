@@ -129,10 +129,8 @@ DesignSpec DesignSpec::learn_impl(const Formula& formula, const Table& data,
     const Formula& f = spec.m_formula;
     const std::string key = f.key.empty() ? f.text : f.key;
 
-    if (f.has_response) {
-        check_numeric(f, f.response.value, data, "the response");
-        if (f.response.ratio) check_numeric(f, f.response.trials, data, "the trials");
-    }
+    // The response is checked by complete_rows(with_response = true), so that a table
+    // without it (prediction, fixed models) can still give the levels and constants.
     for (const auto& o : f.offsets) check_numeric(f, o, data, "offset()");
 
     // Unique atoms, learned once.

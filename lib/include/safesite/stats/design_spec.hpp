@@ -55,7 +55,9 @@ public:
     DesignSpec() = default;
 
     /// Learn the constants of `formula` from `rows` of `data` (factor levels from the table's
-    /// level lists; polynomial and spline constants from the values in `rows`).
+    /// level lists; polynomial and spline constants from the values in `rows`). The response
+    /// need not be in `data` (complete_rows with `with_response` checks it), so a prediction
+    /// or level template without the response works.
     /// Throws FormulaError (position of the atom) for an unknown column — listing the
     /// columns of `data` — or a column of the wrong type; DataError when a spline or
     /// polynomial cannot be formed (too few distinct values).
