@@ -3,10 +3,9 @@
 #include <cmath>
 #include <map>
 
-#include <Eigen/Cholesky>
-
 #include "safesite/error.hpp"
 #include "safesite/stats/design.hpp"
+#include "safesite/stats/glm.hpp"
 #include "safesite/stats/mixed_model.hpp"
 
 namespace safesite::arrival {
@@ -23,68 +22,30 @@ void prediction_design(const stats::DesignSpec& spec, const stats::Table& data,
     offset = spec.offset(data, rows);
 }
 
-// Binomial GLM by iteratively reweighted least squares (McCullagh & Nelder 1989, section
-// 2.5): z = η − o + (y/n − μ)/μ'(η), w = n μ'(η)² / (μ(1 − μ)), β ← (XᵀWX)⁻¹XᵀWz, until the
-// deviance changes by less than 1e-10 relative (common practice).
-void irls_binomial(const stats::Design& d, stats::Link link, BinomialFit& fit) {
-    const Eigen::Index n = d.X.rows(), p = d.X.cols();
-    Eigen::VectorXd beta = Eigen::VectorXd::Zero(p);
-    Eigen::VectorXd eta(n);
-    // Start from the empirical proportions, shrunk away from 0 and 1 (common practice).
-    for (Eigen::Index i = 0; i < n; ++i) {
-        const double mu = (d.y[i] + 0.5) / (d.trials[i] + 1.0);
-        eta[i] = stats::link_function(link, mu);
-    }
-    double deviance_old = INFINITY, loglik = 0.0;
-    Eigen::MatrixXd xtwx(p, p);
-    fit.converged = false;
-    for (int iter = 0; iter < 100; ++iter) {
-        Eigen::VectorXd w(n), z(n);
-        for (Eigen::Index i = 0; i < n; ++i) {
-            const double mu = stats::inverse_link(link, eta[i]);
-            const double dmu = stats::inverse_link_derivative(link, eta[i]);
-            const double prop = d.y[i] / d.trials[i];
-            z[i] = eta[i] - d.offset[i] + (prop - mu) / dmu;
-            w[i] = d.trials[i] * dmu * dmu / (mu * (1.0 - mu));
+// Binomial GLM by stats::fit_glm (IRLS; docs/methods/regression.md). Aliased columns (NaN
+// coefficients) count as 0 in predictions, as fit_glm's own predict does.
+void fit_plain(const stats::Table& data, stats::Link link, BinomialFit& fit) {
+    stats::GlmOptions options;
+    options.family = stats::Family::binomial;
+    options.link = link;
+    const stats::GlmFit g = stats::fit_glm(fit.formula, data, options);
+    fit.spec = g.spec;
+    fit.names = g.column_names;
+    fit.coefficients = g.coefficients;
+    fit.standard_errors = g.std_errors;
+    fit.covariance = g.covariance;
+    for (Eigen::Index j = 0; j < fit.coefficients.size(); ++j) {
+        if (!std::isfinite(fit.coefficients[j])) {
+            fit.coefficients[j] = 0.0;
+            fit.covariance.row(j).setZero();
+            fit.covariance.col(j).setZero();
         }
-        xtwx = d.X.transpose() * w.asDiagonal() * d.X;
-        Eigen::LDLT<Eigen::MatrixXd> solver(xtwx);
-        if (solver.info() != Eigen::Success || !solver.isPositive())
-            throw NumericalError("binomial fit of \"" + fit.formula + "\": singular design");
-        beta = solver.solve(d.X.transpose() * w.asDiagonal() * z);
-        eta = d.X * beta + d.offset;
-        double deviance = 0.0;
-        loglik = 0.0;
-        for (Eigen::Index i = 0; i < n; ++i) {
-            const double mu = stats::inverse_link(link, eta[i]);
-            const double y = d.y[i], m = d.trials[i];
-            loglik += std::lgamma(m + 1) - std::lgamma(y + 1) - std::lgamma(m - y + 1) +
-                      y * std::log(mu) + (m - y) * std::log1p(-mu);
-            if (y > 0) deviance += 2 * y * std::log(y / (m * mu));
-            if (y < m) deviance += 2 * (m - y) * std::log((m - y) / (m * (1 - mu)));
-        }
-        if (!std::isfinite(deviance))
-            throw NumericalError("binomial fit of \"" + fit.formula + "\": non-finite deviance");
-        if (std::abs(deviance - deviance_old) <= 1e-10 * (std::abs(deviance) + 0.1)) {
-            fit.converged = true;
-            break;
-        }
-        deviance_old = deviance;
     }
-    // Covariance (XᵀWX)⁻¹ at the final β.
-    Eigen::VectorXd w(n);
-    for (Eigen::Index i = 0; i < n; ++i) {
-        const double mu = stats::inverse_link(link, eta[i]);
-        const double dmu = stats::inverse_link_derivative(link, eta[i]);
-        w[i] = d.trials[i] * dmu * dmu / (mu * (1.0 - mu));
-    }
-    xtwx = d.X.transpose() * w.asDiagonal() * d.X;
-    fit.coefficients = beta;
-    fit.covariance = xtwx.ldlt().solve(Eigen::MatrixXd::Identity(p, p));
-    fit.standard_errors = fit.covariance.diagonal().cwiseSqrt();
-    fit.log_likelihood = loglik;
-    fit.aic = -2.0 * loglik + 2.0 * static_cast<double>(p);
-    if (!fit.converged) fit.warnings.push_back("IRLS did not converge in 100 iterations");
+    fit.log_likelihood = g.loglik;
+    fit.aic = g.aic;
+    fit.nobs = static_cast<int>(g.n_used);
+    fit.converged = g.converged;
+    fit.warnings = g.warnings;
 }
 
 // Binomial GLMM with a random intercept per grouping column, by the Laplace approximation of
@@ -155,20 +116,20 @@ double BinomialFit::total_group_sd() const {
 
 BinomialFit fit_binomial(const stats::Table& data, const std::string& formula, stats::Link link,
                          const std::vector<std::string>& groups) {
-    stats::DesignOptions options;
-    options.also_required = groups;
-    const stats::Design d = stats::build_design(formula, data, options);
     BinomialFit fit;
     fit.formula = formula;
     fit.link = link;
+    if (groups.empty()) {
+        fit_plain(data, link, fit);
+        return fit;
+    }
+    stats::DesignOptions options;
+    options.also_required = groups;
+    const stats::Design d = stats::build_design(formula, data, options);
     fit.spec = d.spec;
     fit.names = d.column_names;
     fit.nobs = static_cast<int>(d.X.rows());
-    if (groups.empty()) {
-        irls_binomial(d, link, fit);
-    } else {
-        fit_grouped(d, data, link, groups, fit);
-    }
+    fit_grouped(d, data, link, groups, fit);
     return fit;
 }
 
