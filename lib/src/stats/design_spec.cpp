@@ -314,13 +314,23 @@ std::vector<std::size_t> DesignSpec::complete_rows(const Table& data, bool with_
             throw UsageError("no column '" + c + "'; the columns are: " + column_list(data));
         cols.push_back(c);
     }
+    // Missing-value mask, one column at a time (no per-cell lookups by name).
+    std::vector<char> ok(data.rows(), 1);
+    for (const auto& c : cols) {
+        if (data.is_numeric(c)) {
+            const auto& v = data.numeric(c);
+            for (std::size_t r = 0; r < v.size(); ++r)
+                if (std::isnan(v[r])) ok[r] = 0;
+        } else {
+            const auto& v = data.categorical(c).values;
+            for (std::size_t r = 0; r < v.size(); ++r)
+                if (v[r].empty()) ok[r] = 0;
+        }
+    }
     std::vector<std::size_t> rows;
     rows.reserve(data.rows());
-    for (std::size_t r = 0; r < data.rows(); ++r) {
-        bool ok = true;
-        for (const auto& c : cols) ok = ok && !detail::row_missing(data, c, r);
-        if (ok) rows.push_back(r);
-    }
+    for (std::size_t r = 0; r < data.rows(); ++r)
+        if (ok[r]) rows.push_back(r);
     // Labels of categorical atoms must be training levels.
     for (const auto& la : m_atoms) {
         if (!la.categorical) continue;
@@ -379,7 +389,8 @@ Eigen::MatrixXd DesignSpec::model_matrix(const Table& data,
         for (std::size_t j = 0; j < tc.atoms.size(); ++j)
             widths.push_back(m_atoms[tc.atoms[j]].width(tc.full[j]));
         for (std::size_t c = 0; c < tc.width; ++c) {
-            Eigen::VectorXd v = Eigen::VectorXd::Ones(n);
+            auto v = X.col(col);  // filled in place
+            v.setOnes();
             std::size_t rest = c;
             for (std::size_t j = 0; j < tc.atoms.size(); ++j) {
                 const std::size_t pick = rest % widths[j];
@@ -394,7 +405,7 @@ Eigen::MatrixXd DesignSpec::model_matrix(const Table& data,
                     v.array() *= basis[a].col(static_cast<Eigen::Index>(pick)).array();
                 }
             }
-            X.col(col++) = v;
+            ++col;
         }
     }
     return X;

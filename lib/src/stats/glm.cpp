@@ -108,15 +108,36 @@ ThetaResult theta_ml(const Eigen::VectorXd& y, const Eigen::VectorXd& mu, const 
                      double theta0) {
     using boost::math::digamma;
     using boost::math::trigamma;
+    // The ψ(y+θ) and ψ'(y+θ) terms depend on y only through its value: they are summed over
+    // the distinct counts with their total weights (counts take few distinct values).
+    std::vector<double> values;
+    std::vector<double> weight_of;
+    {
+        std::vector<std::pair<double, double>> yw;
+        for (Eigen::Index i = 0; i < y.size(); ++i)
+            if (w[i] > 0.0) yw.emplace_back(y[i], w[i]);
+        std::sort(yw.begin(), yw.end());
+        for (const auto& [v, ww] : yw) {
+            if (values.empty() || values.back() != v) {
+                values.push_back(v);
+                weight_of.push_back(0.0);
+            }
+            weight_of.back() += ww;
+        }
+    }
     auto score_hess = [&](double th, double& s, double& h) {
         s = 0.0;
         h = 0.0;
         const double dg = digamma(th), tg = trigamma(th), lt = std::log(th);
+        for (std::size_t k = 0; k < values.size(); ++k) {
+            s += weight_of[k] * (digamma(values[k] + th) - dg + lt + 1.0);
+            h += weight_of[k] * (trigamma(values[k] + th) - tg + 1.0 / th);
+        }
         for (Eigen::Index i = 0; i < y.size(); ++i) {
             if (w[i] <= 0.0) continue;
             const double a = th + mu[i];
-            s += w[i] * (digamma(y[i] + th) - dg + lt + 1.0 - std::log(a) - (y[i] + th) / a);
-            h += w[i] * (trigamma(y[i] + th) - tg + 1.0 / th - 2.0 / a + (y[i] + th) / (a * a));
+            s -= w[i] * (std::log(a) + (y[i] + th) / a);
+            h += w[i] * (-2.0 / a + (y[i] + th) / (a * a));
         }
     };
     double t = std::log(std::clamp(theta0, 1e-6, k_theta_max));
@@ -488,7 +509,17 @@ GlmFit fit_glm(const Formula& formula, const Table& data, const GlmOptions& opt)
     }
 
     // Null model: intercept only (with the offsets), or the offsets alone without intercept.
-    {
+    // With an intercept and no offsets its MLE is the weighted mean of y (proportion of
+    // successes for binomial), whatever the link: closed form, no refit [1, §2.3].
+    const bool no_offset = d.offset.cwiseAbs().maxCoeff() == 0.0;
+    if (formula.intercept && no_offset && opt.family != Family::gaussian_spread) {
+        detail::IrlsProblem p0 = prob;
+        p0.theta = c.theta;
+        const Eigen::VectorXd wm0 = opt.family == Family::binomial ? w.cwiseProduct(d.trials) : w;
+        const double mean = w.dot(d.y) / wm0.sum();
+        fit.null_deviance = detail::deviance(p0, Eigen::VectorXd::Constant(n, mean));
+        fit.df_null = wpos - 1.0;
+    } else {
         Eigen::MatrixXd X0 = formula.intercept ? Eigen::MatrixXd::Ones(n, 1) : Eigen::MatrixXd(n, 0);
         detail::IrlsProblem p0 = prob;
         p0.X = &X0;

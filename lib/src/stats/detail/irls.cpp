@@ -67,13 +67,23 @@ bool valid_eta(Link link, const Eigen::VectorXd& eta) {
 
 }  // namespace
 
+namespace {
+
+// Σ weighted unit deviances with y and w already on the fitting scale.
+double scaled_deviance(Family family, const Eigen::VectorXd& y, const Eigen::VectorXd& w,
+                       const Eigen::VectorXd& mu, double theta) {
+    double d = 0.0;
+    for (Eigen::Index i = 0; i < y.size(); ++i)
+        if (w[i] > 0.0) d += w[i] * unit_deviance(family, y[i], mu[i], theta);
+    return d;
+}
+
+}  // namespace
+
 double deviance(const IrlsProblem& p, const Eigen::VectorXd& mu) {
     Eigen::VectorXd y, w;
     fitting_scale(p, y, w);
-    double d = 0.0;
-    for (Eigen::Index i = 0; i < y.size(); ++i)
-        if (w[i] > 0.0) d += w[i] * unit_deviance(p.family, y[i], mu[i], p.theta);
-    return d;
+    return scaled_deviance(p.family, y, w, mu, p.theta);
 }
 
 IrlsResult irls(const IrlsProblem& p, const Eigen::VectorXd& start, int max_iterations,
@@ -83,8 +93,12 @@ IrlsResult irls(const IrlsProblem& p, const Eigen::VectorXd& start, int max_iter
     const Eigen::Index q = X.cols();
     Eigen::VectorXd y, w;
     fitting_scale(p, y, w);
+    auto mean_of = [&](const Eigen::VectorXd& eta, Eigen::VectorXd& mu) {
+        for (Eigen::Index i = 0; i < n; ++i) mu[i] = inverse_link(p.link, eta[i]);
+    };
 
     IrlsResult r;
+    r.mu.resize(n);
     if (start.size() == q && q > 0) {
         r.beta = start;
         r.eta = X * start + p.offset;
@@ -97,18 +111,24 @@ IrlsResult irls(const IrlsProblem& p, const Eigen::VectorXd& start, int max_iter
             r.eta[i] = link_function(p.link, mu0);
         }
     }
-    r.mu = r.eta.unaryExpr([&](double e) { return inverse_link(p.link, e); });
-    double dev = start.size() == q ? deviance(p, r.mu) : std::numeric_limits<double>::infinity();
+    mean_of(r.eta, r.mu);
+    double dev = start.size() == q ? scaled_deviance(p.family, y, w, r.mu, p.theta)
+                                   : std::numeric_limits<double>::infinity();
     r.last_step = Eigen::VectorXd::Zero(q);
     if (q == 0) {
         r.eta = p.offset;
-        r.mu = r.eta.unaryExpr([&](double e) { return inverse_link(p.link, e); });
-        r.deviance = deviance(p, r.mu);
+        mean_of(r.eta, r.mu);
+        r.deviance = scaled_deviance(p.family, y, w, r.mu, p.theta);
         r.converged = true;
         return r;
     }
 
-    Eigen::VectorXd z(n), sw(n);
+    // Buffers reused across iterations (large vectors: no allocation inside the loop).
+    Eigen::VectorXd z(n), sw(n), b(n), eta_new(n), mu_new(n);
+    Eigen::VectorXd beta_new(q);
+    Eigen::MatrixXd A = Eigen::MatrixXd::Zero(n, q);
+    // In-place decomposition of A (Eigen's Ref form): no second n × q copy.
+    Eigen::ColPivHouseholderQR<Eigen::Ref<Eigen::MatrixXd>> qr(A);
     for (int it = 1; it <= max_iterations; ++it) {
         r.iterations = it;
         for (Eigen::Index i = 0; i < n; ++i) {
@@ -117,30 +137,36 @@ IrlsResult irls(const IrlsProblem& p, const Eigen::VectorXd& start, int max_iter
             z[i] = r.eta[i] - p.offset[i] + (y[i] - r.mu[i]) / d;
             sw[i] = w[i] > 0.0 ? std::sqrt(w[i] * d * d / v) : 0.0;
         }
-        const Eigen::MatrixXd A = sw.asDiagonal() * X;
-        const Eigen::VectorXd b = sw.cwiseProduct(z);
-        Eigen::ColPivHouseholderQR<Eigen::MatrixXd> qr(A);
-        Eigen::VectorXd beta_new = qr.solve(b);
-        Eigen::VectorXd eta_new = X * beta_new + p.offset;
-        Eigen::VectorXd mu_new = eta_new.unaryExpr([&](double e) { return inverse_link(p.link, e); });
-        double dev_new = valid_eta(p.link, eta_new) ? deviance(p, mu_new)
-                                                    : std::numeric_limits<double>::infinity();
+        A.noalias() = sw.asDiagonal() * X;
+        b = sw.cwiseProduct(z);
+        qr.compute(A);  // overwrites A with the factors
+        beta_new = qr.solve(b);
+        eta_new.noalias() = X * beta_new;
+        eta_new += p.offset;
+        mean_of(eta_new, mu_new);
+        double dev_new = valid_eta(p.link, eta_new)
+                             ? scaled_deviance(p.family, y, w, mu_new, p.theta)
+                             : std::numeric_limits<double>::infinity();
         // Step halving towards the previous β when the deviance is not finite or rises
         // (common practice; only possible after the first iteration).
         if (it > 1) {
-            for (int h = 0; h < 40 && (!std::isfinite(dev_new) || dev_new > dev * (1.0 + 1e-12) + 1e-300); ++h) {
+            for (int h = 0;
+                 h < 40 && (!std::isfinite(dev_new) || dev_new > dev * (1.0 + 1e-12) + 1e-300);
+                 ++h) {
                 beta_new = 0.5 * (beta_new + r.beta);
-                eta_new = X * beta_new + p.offset;
-                mu_new = eta_new.unaryExpr([&](double e) { return inverse_link(p.link, e); });
-                dev_new = deviance(p, mu_new);
+                eta_new.noalias() = X * beta_new;
+                eta_new += p.offset;
+                mean_of(eta_new, mu_new);
+                dev_new = scaled_deviance(p.family, y, w, mu_new, p.theta);
             }
         }
         r.last_step = beta_new - r.beta;
         r.beta = beta_new;
-        r.eta = eta_new;
-        r.mu = mu_new;
-        const double change = std::isfinite(dev) ? std::abs(dev_new - dev) / (std::abs(dev_new) + 0.1)
-                                                 : std::numeric_limits<double>::infinity();
+        r.eta.swap(eta_new);
+        r.mu.swap(mu_new);
+        const double change = std::isfinite(dev)
+                                  ? std::abs(dev_new - dev) / (std::abs(dev_new) + 0.1)
+                                  : std::numeric_limits<double>::infinity();
         dev = dev_new;
         r.last_change = change;
         if (change < tolerance) {
