@@ -1,6 +1,7 @@
 #pragma once
 // Test helper: reads the small comma-separated reference files of tests/data (header line
 // after the '#' source comments, plain unquoted fields) into named string columns.
+#include <algorithm>
 #include <fstream>
 #include <map>
 #include <sstream>
@@ -9,6 +10,7 @@
 #include <vector>
 
 #include "safesite/stats/grouping_factor.hpp"
+#include "safesite/stats/table.hpp"
 
 namespace mixed_test {
 
@@ -64,6 +66,22 @@ inline safesite::stats::GroupingFactor factor(const std::string& name,
         g.level.push_back(it->second);
     }
     return g;
+}
+
+/// A Table with the named columns numeric and every other column categorical (levels sorted
+/// as text, so "1" < "2" < … for the single-digit codes of these files).
+inline safesite::stats::Table make_table(const Columns& cols, const std::vector<std::string>& numeric) {
+    safesite::stats::Table t;
+    for (const auto& [name, values] : cols) {
+        if (std::find(numeric.begin(), numeric.end(), name) != numeric.end()) {
+            std::vector<double> v;
+            for (const auto& s : values) v.push_back(std::stod(s));
+            t.add_numeric(name, v);
+        } else {
+            t.add_categorical(name, values);
+        }
+    }
+    return t;
 }
 
 }  // namespace mixed_test

@@ -1,8 +1,8 @@
 // Mixed models against the reference fits printed in the headers of tests/data/lme4-cbpp.csv
 // and tests/data/lme4-sleepstudy.csv (a general-purpose mixed-model library, lme4 1.1-31,
-// on open datasets; see each file's '#' lines). Until the formula front end is used here the
-// design matrices are built by hand from the columns: treatment contrasts with the first
-// level as reference, exactly the parameterisation the headers name.
+// on open datasets; see each file's '#' lines). The fits go through the formula front end
+// (fit_mixed); cbpp is also fitted from a hand-built design through fit_mixed_core, and the
+// two must agree (treatment contrasts with the first level as reference, as in the header).
 #include <catch2/catch.hpp>
 
 #include <cmath>
@@ -40,13 +40,24 @@ Cbpp load_cbpp() {
 
 TEST_CASE("cbpp: binomial GLMM with a herd random intercept matches the reference Laplace fit",
           "[stats][mixed][reference]") {
-    const Cbpp d = load_cbpp();
+    const auto cols = mixed_test::read_columns(std::string(SAFESITE_TEST_DATA) + "/lme4-cbpp.csv");
+    const Table data = mixed_test::make_table(cols, {"incidence", "size"});
     MixedOptions opt;
     opt.family = Family::binomial;
-    const MixedFit fit = fit_mixed_core(d.X, d.y, d.trials, Eigen::VectorXd(), d.groups, opt,
-                                        {"(Intercept)", "period2", "period3", "period4"});
+    opt.groups = {"herd"};
+    const MixedFit fit = fit_mixed("incidence / size ~ period", data, opt);
     INFO("warnings: " << fit.warnings.size());
     REQUIRE(fit.converged);
+    REQUIRE(fit.fixed_names ==
+            std::vector<std::string>{"(Intercept)", "period[2]", "period[3]", "period[4]"});
+    // The core on a hand-built design gives the same fit (same criterion, same optimiser
+    // path; 1e-9 allows for the order of floating-point sums).
+    {
+        const Cbpp d = load_cbpp();
+        const MixedFit core = fit_mixed_core(d.X, d.y, d.trials, Eigen::VectorXd(), d.groups, opt);
+        for (int j = 0; j < 4; ++j) CHECK(core.fixed[j] == Approx(fit.fixed[j]).margin(1e-9));
+        CHECK(core.log_likelihood == Approx(fit.log_likelihood).margin(1e-9));
+    }
     // lme4-cbpp.csv header, "fixed effects (se)". Issue #6 asks 1e-4; we assert 1e-3 and
     // say why (docs/methods/mixed-models.md, "Agreement with the reference fits"): the
     // reference library ends its second optimisation stage by a simplex method stopped at an
@@ -79,26 +90,15 @@ TEST_CASE("cbpp: binomial GLMM with a herd random intercept matches the referenc
 }
 
 namespace {
-struct Sleep {
-    Eigen::MatrixXd X;
-    Eigen::VectorXd y;
-    std::vector<GroupingFactor> groups;
-};
-Sleep load_sleep() {
+Table load_sleep_table() {
     const auto c = mixed_test::read_columns(std::string(SAFESITE_TEST_DATA) + "/lme4-sleepstudy.csv");
-    Sleep d;
-    d.y = mixed_test::numbers(c.at("Reaction"));
-    d.X.resize(d.y.size(), 2);
-    d.X.col(0).setOnes();
-    d.X.col(1) = mixed_test::numbers(c.at("Days"));
-    d.groups.push_back(mixed_test::factor("Subject", c.at("Subject")));
-    return d;
+    return mixed_test::make_table(c, {"Reaction", "Days"});
 }
 }  // namespace
 
 TEST_CASE("sleepstudy: Gaussian LMM with a Subject random intercept matches REML and ML fits",
           "[stats][mixed][reference]") {
-    const Sleep d = load_sleep();
+    const Table data = load_sleep_table();
     // lme4-sleepstudy.csv header. The issue (#6) asks 1e-5 relative on the fixed effects, both
     // SDs and the log-likelihoods; the header prints 9-11 significant digits and the profiled
     // criterion is optimised to about 1e-8 relative in θ, so 1e-5 has ample room.
@@ -106,8 +106,8 @@ TEST_CASE("sleepstudy: Gaussian LMM with a Subject random intercept matches REML
     SECTION("REML") {
         MixedOptions opt;
         opt.reml = true;
-        const MixedFit fit = fit_mixed_core(d.X, d.y, Eigen::VectorXd(), Eigen::VectorXd(),
-                                            d.groups, opt, {"(Intercept)", "Days"});
+        opt.groups = {"Subject"};
+        const MixedFit fit = fit_mixed("Reaction ~ Days", data, opt);
         REQUIRE(fit.converged);
         CHECK(fit.fixed[0] == Approx(251.40510485).epsilon(rel));
         CHECK(fit.fixed[1] == Approx(10.46728596).epsilon(rel));
@@ -124,8 +124,8 @@ TEST_CASE("sleepstudy: Gaussian LMM with a Subject random intercept matches REML
     SECTION("ML") {
         MixedOptions opt;
         opt.reml = false;
-        const MixedFit fit = fit_mixed_core(d.X, d.y, Eigen::VectorXd(), Eigen::VectorXd(),
-                                            d.groups, opt, {"(Intercept)", "Days"});
+        opt.groups = {"Subject"};
+        const MixedFit fit = fit_mixed("Reaction ~ Days", data, opt);
         REQUIRE(fit.converged);
         // "ML: same fixed effects": balanced design, so β̂ does not depend on θ.
         CHECK(fit.fixed[0] == Approx(251.40510485).epsilon(rel));
@@ -146,16 +146,11 @@ TEST_CASE("sleepstudy: correlated random intercept and Days slope per Subject",
     // for the Subject intercept SD: releases of the reference library print 24.740 or 24.741
     // (variance 612.09 or 612.10, from memory) for this fit, so that optimum is itself known
     // to about 1e-3 and 1e-3 is asserted (ours: 24.7405).
-    const auto c = mixed_test::read_columns(std::string(SAFESITE_TEST_DATA) + "/lme4-sleepstudy.csv");
-    const Eigen::VectorXd y = mixed_test::numbers(c.at("Reaction"));
-    Eigen::MatrixXd X(y.size(), 2);
-    X.col(0).setOnes();
-    X.col(1) = mixed_test::numbers(c.at("Days"));
-    GroupingFactor subject = mixed_test::factor("Subject", c.at("Subject"));
-    subject.slope = X.col(1);
-    subject.slope_name = "Days";
-    const MixedFit fit = fit_mixed_core(X, y, Eigen::VectorXd(), Eigen::VectorXd(), {subject},
-                                        MixedOptions{}, {"(Intercept)", "Days"});
+    MixedOptions opt;
+    opt.groups = {"Subject"};
+    opt.slope_column = "Days";
+    opt.slope_group = "Subject";
+    const MixedFit fit = fit_mixed("Reaction ~ Days", load_sleep_table(), opt);
     REQUIRE(fit.converged);
     REQUIRE(fit.variance_components.size() == 3);
     CHECK(fit.variance_components[0].sd == Approx(24.741).margin(1e-3));

@@ -14,6 +14,7 @@
 
 #include <Eigen/Core>
 
+#include "safesite/stats/design_spec.hpp"
 #include "safesite/stats/family.hpp"
 #include "safesite/stats/grouping_factor.hpp"
 
@@ -65,6 +66,13 @@ struct MixedFit {
     int iterations = 0;           ///< objective evaluations of the outer optimisation(s)
     bool converged = false;
     std::vector<std::string> warnings;       ///< plain-language diagnostics
+
+    /// Set by fit_mixed (formula front end): the learned design, to rebuild the fixed-effect
+    /// columns for new data, and the table columns of the grouping factors and the slope.
+    DesignSpec spec;
+    bool has_spec = false;
+    std::vector<std::string> group_columns;
+    std::string slope_column;
 
     /// The random effect of `level` of `group` for `term` ("(Intercept)" or the slope
     /// covariate), 0 for a level not seen in the fit. Throws UsageError for an unknown

@@ -15,6 +15,7 @@
 #include "safesite/stats/family.hpp"
 #include "safesite/stats/grouping_factor.hpp"
 #include "safesite/stats/mixed_fit.hpp"
+#include "safesite/stats/table.hpp"
 
 namespace safesite::stats {
 
@@ -54,5 +55,20 @@ MixedFit fit_mixed_core(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
                         const Eigen::VectorXd& trials, const Eigen::VectorXd& offset,
                         const std::vector<GroupingFactor>& groups, const MixedOptions& options,
                         const std::vector<std::string>& column_names = {});
+
+/// Fit a mixed model of `formula` (fixed effects only, docs/formats.md; random terms are
+/// never written in the formula) to `data`, with a random intercept for every column named
+/// in `options.groups` and, when `options.slope_column` is set, a random slope of that
+/// numeric column by `options.slope_group`.
+///
+/// Grouping columns may be categorical (levels in the column's level order) or numeric
+/// (e.g. an integer year; levels in numeric order, labelled by their value). Rows with a
+/// missing value in the formula's columns, a grouping column or the slope column are left
+/// out, as by build_design. Only levels present in the used rows become levels of the fit.
+///
+/// \throws FormulaError for a formula error or an unknown / mistyped column; UsageError when
+///         `groups` is empty, names a column twice, or `slope_group` is not one of `groups`,
+///         or the slope column is not numeric; the errors of fit_mixed_core otherwise.
+MixedFit fit_mixed(const std::string& formula, const Table& data, const MixedOptions& options);
 
 }  // namespace safesite::stats
