@@ -1,9 +1,11 @@
 #include "safesite/stats/mixed_fit.hpp"
 
 #include <cmath>
+#include <limits>
 #include <unordered_map>
 
 #include "safesite/error.hpp"
+#include "stats/detail/group_labels.hpp"
 
 namespace safesite::stats {
 
@@ -77,18 +79,53 @@ Eigen::VectorXd MixedFit::linear_predictor(const Eigen::MatrixXd& X, const Eigen
     return eta;
 }
 
-Eigen::VectorXd MixedFit::inverse_link(const Eigen::VectorXd& eta) const {
-    Eigen::VectorXd mu(eta.size());
-    for (Eigen::Index i = 0; i < eta.size(); ++i) {
-        const double e = eta[i];
-        switch (link) {
-            case Link::logit: mu[i] = 1.0 / (1.0 + std::exp(-e)); break;
-            case Link::probit: mu[i] = 0.5 * std::erfc(-e / std::sqrt(2.0)); break;
-            case Link::cloglog: mu[i] = -std::expm1(-std::exp(e)); break;
-            case Link::log: mu[i] = std::exp(e); break;
-            case Link::identity: mu[i] = e; break;
+Eigen::VectorXd MixedFit::linear_predictor(const Table& newdata, bool include_random) const {
+    if (!has_spec)
+        throw UsageError("this mixed model was fitted without a formula; predict from a design "
+                         "matrix with linear_predictor(X, offset, groups, include_random)");
+    const std::vector<std::size_t> rows = spec.complete_rows(newdata, false);
+    const Eigen::MatrixXd X = spec.model_matrix(newdata, rows);
+    const Eigen::VectorXd off = spec.offset(newdata, rows);
+    std::vector<GroupingFactor> groups;
+    if (include_random) {
+        for (const std::string& name : group_columns) {
+            if (!newdata.has(name)) continue;  // absent: the average level, effect 0
+            GroupingFactor g;
+            g.name = name;
+            std::unordered_map<std::string, int> index;
+            for (std::size_t r : rows) {
+                const std::string label = detail::group_label(newdata, name, r);
+                auto it = index.find(label);
+                if (it == index.end()) {
+                    it = index.emplace(label, static_cast<int>(g.level_names.size())).first;
+                    g.level_names.push_back(label);  // "" never matches a fitted level
+                }
+                g.level.push_back(it->second);
+            }
+            const GroupEffects& fitted = find_group(*this, name);
+            if (fitted.terms.size() == 2) {
+                if (!newdata.is_numeric(slope_column))
+                    throw UsageError("prediction with random effects needs the random-slope "
+                                     "column '" + slope_column + "'");
+                const auto& x = newdata.numeric(slope_column);
+                g.slope.resize(static_cast<Eigen::Index>(rows.size()));
+                for (std::size_t i = 0; i < rows.size(); ++i)
+                    g.slope[static_cast<Eigen::Index>(i)] = x[rows[i]];
+            }
+            groups.push_back(std::move(g));
         }
     }
+    const Eigen::VectorXd eta = linear_predictor(X, off, groups, include_random);
+    Eigen::VectorXd out = Eigen::VectorXd::Constant(static_cast<Eigen::Index>(newdata.rows()),
+                                                    std::numeric_limits<double>::quiet_NaN());
+    for (std::size_t i = 0; i < rows.size(); ++i)
+        out[static_cast<Eigen::Index>(rows[i])] = eta[static_cast<Eigen::Index>(i)];
+    return out;
+}
+
+Eigen::VectorXd MixedFit::inverse_link(const Eigen::VectorXd& eta) const {
+    Eigen::VectorXd mu(eta.size());
+    for (Eigen::Index i = 0; i < eta.size(); ++i) mu[i] = stats::inverse_link(link, eta[i]);
     return mu;
 }
 

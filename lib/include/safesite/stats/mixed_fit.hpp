@@ -88,6 +88,15 @@ struct MixedFit {
     Eigen::VectorXd linear_predictor(const Eigen::MatrixXd& X, const Eigen::VectorXd& offset,
                                      const std::vector<GroupingFactor>& groups,
                                      bool include_random) const;
+    /// Linear predictor for every row of `newdata` (fits made by fit_mixed only): the
+    /// fixed part \f$x^\top\beta + o\f$ from the formula's columns, plus, with
+    /// `include_random`, each row's conditional modes for the grouping columns present in
+    /// `newdata` (a level not seen in the fit, a missing label or an absent grouping column
+    /// contributes 0 — the population mean). Without `include_random` this is the "average
+    /// year" (docs/methods/mixed-models.md). Rows with a missing predictor give NaN.
+    /// Throws UsageError for a fit without formula or a missing random-slope column;
+    /// FormulaError / DataError as DesignSpec does for missing columns or unknown levels.
+    Eigen::VectorXd linear_predictor(const Table& newdata, bool include_random) const;
     /// \f$\mu = g^{-1}(\eta)\f$ element-wise with this fit's link.
     Eigen::VectorXd inverse_link(const Eigen::VectorXd& eta) const;
 };
