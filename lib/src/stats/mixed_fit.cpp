@@ -123,6 +123,11 @@ Eigen::VectorXd MixedFit::linear_predictor(const Table& newdata, bool include_ra
     return out;
 }
 
+Eigen::VectorXd MixedFit::predict(const Table& newdata, Scale scale, bool include_random) const {
+    const Eigen::VectorXd eta = linear_predictor(newdata, include_random);
+    return scale == Scale::link ? eta : inverse_link(eta);  // NaN rows stay NaN
+}
+
 Eigen::VectorXd MixedFit::inverse_link(const Eigen::VectorXd& eta) const {
     Eigen::VectorXd mu(eta.size());
     for (Eigen::Index i = 0; i < eta.size(); ++i) mu[i] = stats::inverse_link(link, eta[i]);

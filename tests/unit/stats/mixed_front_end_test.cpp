@@ -79,6 +79,12 @@ TEST_CASE("fit_mixed: numeric year and categorical plot as crossed random interc
     CHECK(with[1] == Approx(xb + fit.random_effect("plot", "P2")).margin(1e-12));
     CHECK(std::isnan(with[2]));
     CHECK(std::isnan(fixed_only[2]));
+    // predict: the link scale is the linear predictor; identity link, so the response too.
+    const Eigen::VectorXd p_link = fit.predict(nd, Scale::link, true);
+    const Eigen::VectorXd p_resp = fit.predict(nd, Scale::response, false);
+    CHECK(p_link[0] == Approx(with[0]).margin(1e-12));
+    CHECK(p_resp[1] == Approx(fixed_only[1]).margin(1e-12));
+    CHECK(std::isnan(p_resp[2]));
     // An absent grouping column contributes 0 (the "average plot").
     Table no_plot;
     no_plot.add_numeric("year", {2017});
@@ -153,4 +159,43 @@ TEST_CASE("fit_mixed: option errors are UsageErrors", "[stats][mixed][unit]") {
         const MixedFit fit = fit_mixed_core(X, y, {}, {}, {g}, opt);
         CHECK_THROWS_AS(fit.linear_predictor(data, false), UsageError);
     }
+}
+
+TEST_CASE("fit_mixed: binomial prediction on the response scale is the inverse logit",
+          "[stats][mixed][unit]") {
+    // Survival of 12 plots × 20 plants with a plot effect; predict a seen and an unseen plot.
+    std::seed_seq seq{7, 0};
+    std::mt19937_64 rng(seq);
+    std::normal_distribution<double> normal(0.0, 1.0);
+    std::vector<double> size, survived;
+    std::vector<std::string> plot;
+    for (int p = 0; p < 12; ++p) {
+        const double b = 0.7 * normal(rng);
+        for (int k = 0; k < 20; ++k) {
+            const double z = normal(rng);
+            std::string label = "Q";
+            label += std::to_string(p);
+            plot.push_back(label);
+            size.push_back(z);
+            const double pr = 1.0 / (1.0 + std::exp(-(0.4 + 0.9 * z + b)));
+            survived.push_back(std::bernoulli_distribution(pr)(rng) ? 1.0 : 0.0);
+        }
+    }
+    Table data;
+    data.add_numeric("size", size);
+    data.add_numeric("survived", survived);
+    data.add_categorical("plot", plot);
+    MixedOptions opt;
+    opt.family = Family::binomial;
+    opt.groups = {"plot"};
+    const MixedFit fit = fit_mixed("survived ~ size", data, opt);
+    REQUIRE(fit.converged);
+    Table nd;
+    nd.add_numeric("size", {0.5, 0.5});
+    nd.add_categorical("plot", {"Q3", "elsewhere"});
+    const Eigen::VectorXd eta = fit.predict(nd, Scale::link, true);
+    const Eigen::VectorXd mu = fit.predict(nd, Scale::response, true);
+    for (int i = 0; i < 2; ++i) CHECK(mu[i] == Approx(1.0 / (1.0 + std::exp(-eta[i]))).margin(1e-12));
+    CHECK(eta[0] == Approx(fit.fixed[0] + 0.5 * fit.fixed[1] + fit.random_effect("plot", "Q3")).margin(1e-12));
+    CHECK(eta[1] == Approx(fit.fixed[0] + 0.5 * fit.fixed[1]).margin(1e-12));
 }

@@ -16,6 +16,7 @@
 
 #include "safesite/stats/design_spec.hpp"
 #include "safesite/stats/family.hpp"
+#include "safesite/stats/glm.hpp"
 #include "safesite/stats/grouping_factor.hpp"
 
 namespace safesite::stats {
@@ -97,6 +98,12 @@ struct MixedFit {
     /// Throws UsageError for a fit without formula or a missing random-slope column;
     /// FormulaError / DataError as DesignSpec does for missing columns or unknown levels.
     Eigen::VectorXd linear_predictor(const Table& newdata, bool include_random) const;
+    /// Prediction for every row of `newdata` on the link scale (η, as linear_predictor) or
+    /// the response scale (μ = g⁻¹(η)). With `include_random` each row uses its level's
+    /// conditional mode (0 for unseen levels): a year kernel; without, fixed effects only:
+    /// the "average year" kernel. Rows with a missing predictor give NaN. Throws as
+    /// linear_predictor(const Table&, bool).
+    Eigen::VectorXd predict(const Table& newdata, Scale scale, bool include_random) const;
     /// \f$\mu = g^{-1}(\eta)\f$ element-wise with this fit's link.
     Eigen::VectorXd inverse_link(const Eigen::VectorXd& eta) const;
 };
