@@ -1,0 +1,22 @@
+#include "safesite/pipeline/kernel_rates.hpp"
+
+#include <algorithm>
+
+namespace safesite::pipeline {
+
+stats::Table covariate_table(const KernelLayout& layout, const Eigen::VectorXd& sizes,
+                             std::size_t microsite, bool seedling, const std::string& year) {
+    const auto n = static_cast<std::size_t>(sizes.size());
+    stats::Table table;
+    table.add_numeric("size", std::vector<double>(sizes.data(), sizes.data() + n));
+    table.add_categorical("microsite",
+                          std::vector<std::string>(n, layout.microsites.at(microsite)),
+                          layout.microsites);
+    table.add_numeric("seedling", std::vector<double>(n, seedling ? 1.0 : 0.0));
+    std::vector<std::string> years = layout.year_levels;
+    if (std::find(years.begin(), years.end(), year) == years.end()) years.push_back(year);
+    table.add_categorical("year", std::vector<std::string>(n, year), years);
+    return table;
+}
+
+}  // namespace safesite::pipeline
