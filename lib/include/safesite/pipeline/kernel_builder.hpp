@@ -57,12 +57,6 @@ struct SurvivalChange {
     double factor = 1.0;  ///< 1 + proportional change, ≥ 0
 };
 
-/// Recruitment parameters (one entry per microsite): a_m and e_m.
-struct RecruitmentParameters {
-    Eigen::VectorXd arrival;        ///< a_m ∈ [0, 1], Σ a_m ≤ 1
-    Eigen::VectorXd establishment;  ///< e_m ≥ 0
-};
-
 /// The structured kernel description for the kernel module.
 ///
 /// Classes: the established class of each microsite (0..M−1), then, in seedling_class mode,

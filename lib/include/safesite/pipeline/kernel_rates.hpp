@@ -43,6 +43,12 @@ struct KernelRates {
     BoundRate recruit_size; ///< c_m(z') = N(mean_m, sd_m²) on the recruits table
 };
 
+/// Recruitment parameters (one entry per microsite): a_m and e_m.
+struct RecruitmentParameters {
+    Eigen::VectorXd arrival;        ///< a_m ∈ [0, 1], Σ a_m ≤ 1
+    Eigen::VectorXd establishment;  ///< e_m ≥ 0
+};
+
 /// How plants in their first year are represented.
 enum class JuvenileMode {
     /// No separate class; "juveniles" for the perturbation are plants below a size threshold.

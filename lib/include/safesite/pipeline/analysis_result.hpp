@@ -1,0 +1,101 @@
+#pragma once
+/// \file analysis_result.hpp
+/// The results of `analyse` (run.hpp): one KernelResult per census year and for the pooled
+/// kernel, scenarios, parameter sensitivities and break-even establishment. Plain values;
+/// `to_tables` (tables.hpp) turns them into the long-form output tables of docs/formats.md.
+
+#include <cstddef>
+#include <limits>
+#include <string>
+#include <vector>
+
+#include <Eigen/Core>
+
+#include "safesite/pipeline/break_even.hpp"
+#include "safesite/pipeline/prepared_model.hpp"
+
+namespace safesite::pipeline {
+
+/// λ of a kernel under one proportional change δ of juvenile survival.
+struct PerturbationPoint {
+    double change = 0.0;   ///< δ: juvenile survival s → min(1, (1 + δ) s)
+    double lambda = 0.0;   ///< λ under the change
+};
+
+/// One kernel (a census year t → t+1, or "pooled") and what was computed on it.
+struct KernelResult {
+    static constexpr double nan = std::numeric_limits<double>::quiet_NaN();
+
+    std::string label;               ///< year label t, or "pooled"
+    double lambda = nan;             ///< dominant eigenvalue (per year)
+    double r0 = nan;                 ///< net reproductive rate R0
+    double generation_time = nan;    ///< T = log R0 / log λ, years
+    std::size_t points = 0;          ///< mesh points n
+    double lambda_refined = nan;     ///< λ with 2n points (mesh convergence); NaN if not run
+
+    Eigen::VectorXd nodes;           ///< mesh nodes z_i (kernel scale)
+    Eigen::VectorXd weights;         ///< quadrature weights h_i
+    /// Stable structure: density per class and node, class-major (B·n), normalised so that
+    /// Σ_k Σ_i h_i w_k(z_i) = 1.
+    Eigen::VectorXd w;
+    /// Reproductive value, class-major, normalised so that Σ_k Σ_i h_i v_k(z_i) w_k(z_i) = 1.
+    Eigen::VectorXd v;
+
+    std::vector<double> max_evicted_growth;  ///< per class: max over parents of evicted mass
+    std::vector<double> evicted_recruits;    ///< per microsite: recruit-size mass off the mesh
+
+    Eigen::VectorXd arrival;          ///< a used
+    Eigen::VectorXd establishment;    ///< e used
+
+    std::vector<PerturbationPoint> perturbation;  ///< juvenile survival changes
+    double juvenile_sensitivity = nan;  ///< dλ/dε for s_J → s_J + ε
+    double juvenile_elasticity = nan;   ///< (1/λ) dλ/dδ for s_J → (1 + δ) s_J
+};
+
+/// One scenario's arrival, establishment and λ (pooled and per year).
+struct ScenarioResult {
+    std::string name;
+    Eigen::VectorXd arrival;               ///< a under the scenario
+    double lost = 0.0;                     ///< 1 − Σ a
+    Eigen::VectorXd establishment_pooled;  ///< e of the pooled kernel under the scenario
+    double lambda_pooled = 0.0;
+    double delta_pooled = 0.0;             ///< λ_scenario − λ_baseline (pooled)
+    std::vector<double> lambda_years;      ///< per census year (order of PreparedModel::years)
+    std::vector<double> delta_years;
+};
+
+/// Sensitivity and elasticity of the pooled λ to one parameter.
+struct ParameterSensitivity {
+    std::string parameter;     ///< arrival | establishment | cover | hazard | juvenile_survival
+    std::string target;        ///< microsite or growth-form label ("" for juvenile survival)
+    double value = 0.0;        ///< the parameter's value θ
+    double sensitivity = 0.0;  ///< dλ/dθ
+    double elasticity = 0.0;   ///< (θ/λ) dλ/dθ
+};
+
+/// Break-even bare-soil establishment for one neighbour form (break_even.hpp).
+struct BreakEvenResult {
+    std::string form;              ///< neighbour form f, or "all" (every form's seeds moved)
+    double arrival_form = 0.0;     ///< a_f moved to bare soil
+    double establishment_bare = 0.0;  ///< current ê_bare
+    double lambda_baseline = 0.0;  ///< pooled λ0
+    BreakEven solution;            ///< e* and status
+};
+
+/// Everything `analyse` computes.
+struct AnalysisResult {
+    KernelLayout layout;
+    std::size_t bare = 0;
+    ArrivalSource arrival_source = ArrivalSource::given;
+    std::vector<KernelResult> kernels;  ///< census years in order, then "pooled" last
+    std::vector<ScenarioResult> scenarios;
+    std::vector<ParameterSensitivity> sensitivities;
+    std::vector<BreakEvenResult> break_even;
+    std::vector<std::string> assumptions;
+    std::vector<std::string> warnings;
+
+    /// The pooled kernel's result (the last one).
+    const KernelResult& pooled() const { return kernels.back(); }
+};
+
+}  // namespace safesite::pipeline

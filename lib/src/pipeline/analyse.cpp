@@ -1,0 +1,297 @@
+#include "safesite/pipeline/analyse.hpp"
+
+#include <cmath>
+#include <memory>
+
+#include "detail/analysis_bridge.hpp"
+#include "safesite/arrival/arrival_chain.hpp"
+#include "safesite/error.hpp"
+#include "safesite/kernel/kernel_operator.hpp"
+#include "safesite/pipeline/kernel_builder.hpp"
+
+namespace safesite::pipeline {
+
+namespace {
+
+using CurvesPtr = std::shared_ptr<const KernelCurves>;
+
+void check_model(const PreparedModel& model) {
+    const auto n_sites = static_cast<Eigen::Index>(model.layout.microsites.size());
+    if (n_sites == 0) throw UsageError("prepared model: no microsites");
+    if (model.bare >= model.layout.microsites.size())
+        throw UsageError("prepared model: bare-soil index out of range");
+    if (model.arrival.size() != n_sites)
+        throw UsageError("prepared model: arrival needs one value per microsite");
+    if (model.establishment_pooled.size() != n_sites)
+        throw UsageError("prepared model: pooled establishment needs one value per microsite");
+    if (model.establishment_by_year.size() != model.years.size())
+        throw UsageError("prepared model: establishment needs one vector per census year");
+    for (const auto& e : model.establishment_by_year)
+        if (e.size() != n_sites)
+            throw UsageError("prepared model: establishment needs one value per microsite");
+    for (double change : model.survival_changes)
+        if (!(change > -1.0) || !std::isfinite(change))
+            throw UsageError("survival change " + std::to_string(change) +
+                             " is not admissible; expected a proportional change > -1");
+}
+
+bool has_juveniles(const KernelLayout& layout, const Eigen::VectorXd& nodes) {
+    if (layout.juvenile == JuvenileMode::seedling_class) return true;
+    return std::isfinite(layout.juvenile_size_below) && nodes.size() > 0 &&
+           nodes[0] < layout.juvenile_size_below;
+}
+
+double lambda_of(const kernel::Mesh& mesh, const CurvesPtr& curves,
+                 const RecruitmentParameters& recruitment, kernel::EvictionPolicy eviction,
+                 SurvivalChange change = {}) {
+    const kernel::KernelOperator op(mesh,
+                                    describe_kernel(curves, recruitment, eviction, change));
+    return detail::eigen(op).lambda;
+}
+
+// Arrival fractions under a scenario. With a fitted chain the arrival module applies the
+// modifiers; with fractions given directly only direct fractions can change, which the
+// arrival module handles on the trivial chain that reproduces the given fractions (cover
+// c_f = a_f, trapping 1, no departures: ℓ = a).
+arrival::ArrivalResult scenario_arrival(const PreparedModel& model,
+                                        const ScenarioSettings& scenario) {
+    if (model.chain) return arrival::scenario_arrival(*model.chain, scenario.arrival);
+    const auto& mod = scenario.arrival;
+    if (!mod.cover_factor.empty() || !mod.trapping_odds_factor.empty() ||
+        !mod.hazard_factor.empty() || mod.exposure_days || mod.relanding)
+        throw UsageError("scenario '" + scenario.name +
+                         "' changes cover, trapping, hazards, exposure or re-landing, but the "
+                         "arrival fractions are given directly; these need [arrival] method = "
+                         "\"experiments\"");
+    arrival::ArrivalResult out;
+    out.fractions = model.arrival;
+    out.lost = 1.0 - model.arrival.sum();
+    if (mod.fractions.empty() && mod.fraction_shares.empty()) return out;
+    if (std::abs(model.arrival.sum() - 1.0) > 1e-9)
+        throw UsageError("scenario '" + scenario.name +
+                         "': direct arrival fractions must sum to 1 to be rescaled");
+    arrival::ChainParameters trivial;
+    trivial.microsites = model.layout.microsites;
+    trivial.bare = model.bare;
+    trivial.cover = model.arrival;
+    trivial.cover[static_cast<Eigen::Index>(model.bare)] = 0.0;
+    trivial.trapping = Eigen::VectorXd::Ones(model.arrival.size());
+    trivial.hazard_per_day = Eigen::VectorXd::Zero(model.arrival.size());
+    trivial.relanding = 0.0;
+    trivial.exposure_days = 0.0;
+    return arrival::scenario_arrival(trivial, mod);
+}
+
+Eigen::VectorXd scaled_establishment(const PreparedModel& model, const Eigen::VectorXd& e,
+                                     const ScenarioSettings& scenario) {
+    Eigen::VectorXd out = e;
+    for (const auto& [label, factor] : scenario.establishment_factor) {
+        std::size_t m = 0;
+        while (m < model.layout.microsites.size() && model.layout.microsites[m] != label) ++m;
+        if (m == model.layout.microsites.size())
+            throw UsageError("scenario '" + scenario.name + "': unknown microsite '" + label +
+                             "' in establishment_factor");
+        if (!(factor >= 0.0) || !std::isfinite(factor))
+            throw UsageError("scenario '" + scenario.name +
+                             "': establishment factor must be finite and >= 0");
+        out[static_cast<Eigen::Index>(m)] *= factor;
+    }
+    return out;
+}
+
+}  // namespace
+
+RecruitmentParameters baseline_recruitment(const PreparedModel& model, std::size_t index) {
+    RecruitmentParameters r;
+    r.arrival = model.arrival;
+    r.establishment = index < model.years.size() ? model.establishment_by_year.at(index)
+                                                 : model.establishment_pooled;
+    return r;
+}
+
+AnalysisResult analyse(const PreparedModel& model) {
+    check_model(model);
+    const kernel::EvictionPolicy eviction = model.mesh.eviction;
+    const kernel::Mesh mesh(model.mesh.lower, model.mesh.upper, model.mesh.points,
+                            model.mesh.rule);
+
+    AnalysisResult out;
+    out.layout = model.layout;
+    out.bare = model.bare;
+    out.arrival_source = model.arrival_source;
+    out.assumptions = model.assumptions;
+    out.warnings = model.warnings;
+
+    // Every kernel's rates on the mesh nodes, once: census years in order, then pooled.
+    std::vector<const KernelRates*> rates;
+    for (const auto& r : model.years) rates.push_back(&r);
+    rates.push_back(&model.pooled);
+    std::vector<CurvesPtr> curves;
+    for (const KernelRates* r : rates)
+        curves.push_back(evaluate_rates(*r, model.layout, mesh.points()));
+
+    const bool juveniles = has_juveniles(model.layout, mesh.points());
+    if (!juveniles && !model.survival_changes.empty())
+        out.warnings.push_back(
+            "no juveniles on the mesh (no first-year class and no size below the juvenile "
+            "threshold): the juvenile survival perturbation is skipped");
+
+    for (std::size_t i = 0; i < rates.size(); ++i) {
+        const RecruitmentParameters recruitment = baseline_recruitment(model, i);
+        const kernel::KernelOperator op(mesh,
+                                        describe_kernel(curves[i], recruitment, eviction));
+        const analysis::EigenTriple triple = detail::eigen(op);
+
+        KernelResult k;
+        k.label = rates[i]->label;
+        k.lambda = triple.lambda;
+        const detail::LifeHistory life = detail::life_history(op, triple);
+        k.r0 = life.r0;
+        k.generation_time = life.generation_time;
+        k.points = mesh.size();
+        k.nodes = mesh.points();
+        k.weights = mesh.weights();
+        k.w = triple.w;
+        k.v = triple.v;
+        k.arrival = recruitment.arrival;
+        k.establishment = recruitment.establishment;
+        for (std::size_t c = 0; c < op.class_count(); ++c)
+            k.max_evicted_growth.push_back(op.evicted_growth(c).maxCoeff());
+        for (std::size_t m = 0; m < op.microsite_count(); ++m)
+            k.evicted_recruits.push_back(op.evicted_recruits(m));
+
+        if (juveniles) {
+            // Directional derivatives ⟨v, ∂A w⟩/⟨v, w⟩ (docs/methods/pipeline.md).
+            const kernel::KernelOperator d_prop(
+                mesh, juvenile_survival_derivative(curves[i], eviction,
+                                                   JuvenileDerivative::proportional));
+            const kernel::KernelOperator d_add(
+                mesh, juvenile_survival_derivative(curves[i], eviction,
+                                                   JuvenileDerivative::additive));
+            k.juvenile_elasticity =
+                detail::directional_derivative(op, triple, d_prop) / triple.lambda;
+            k.juvenile_sensitivity = detail::directional_derivative(op, triple, d_add);
+            for (double change : model.survival_changes) {
+                const double lambda =
+                    change == 0.0 ? triple.lambda
+                                  : lambda_of(mesh, curves[i], recruitment, eviction,
+                                              SurvivalChange{1.0 + change});
+                k.perturbation.push_back({change, lambda});
+            }
+        }
+
+        if (model.mesh_check) {
+            const kernel::Mesh fine(model.mesh.lower, model.mesh.upper, 2 * model.mesh.points,
+                                    model.mesh.rule);
+            k.lambda_refined =
+                lambda_of(fine, evaluate_rates(*rates[i], model.layout, fine.points()),
+                          recruitment, eviction);
+        }
+        out.kernels.push_back(std::move(k));
+    }
+
+    const std::size_t pooled_index = rates.size() - 1;
+    const CurvesPtr& pooled_curves = curves[pooled_index];
+    const double lambda0 = out.pooled().lambda;
+
+    // Scenarios: new a (and e) for the pooled and every year kernel.
+    for (const ScenarioSettings& scenario : model.scenarios) {
+        const arrival::ArrivalResult a = scenario_arrival(model, scenario);
+        ScenarioResult s;
+        s.name = scenario.name;
+        s.arrival = a.fractions;
+        s.lost = a.lost;
+        for (std::size_t i = 0; i < rates.size(); ++i) {
+            RecruitmentParameters r = baseline_recruitment(model, i);
+            r.arrival = a.fractions;
+            r.establishment = scaled_establishment(model, r.establishment, scenario);
+            const double lambda = lambda_of(mesh, curves[i], r, eviction);
+            const double delta = lambda - out.kernels[i].lambda;
+            if (i == pooled_index) {
+                s.establishment_pooled = r.establishment;
+                s.lambda_pooled = lambda;
+                s.delta_pooled = delta;
+            } else {
+                s.lambda_years.push_back(lambda);
+                s.delta_years.push_back(delta);
+            }
+        }
+        out.scenarios.push_back(std::move(s));
+    }
+
+    // Sensitivities of the pooled λ to a_m and e_m (kernel), c_f and h_m (chain rule).
+    {
+        const RecruitmentParameters r = baseline_recruitment(model, pooled_index);
+        const kernel::KernelOperator op(mesh, describe_kernel(pooled_curves, r, eviction));
+        const analysis::EigenTriple triple = detail::eigen(op);
+        const Eigen::VectorXd d_a = detail::d_lambda_d_arrival(op, triple);
+        const Eigen::VectorXd d_e = detail::d_lambda_d_establishment(op, triple);
+        const auto& sites = model.layout.microsites;
+        auto push = [&](const std::string& parameter, const std::string& target, double value,
+                        double sensitivity) {
+            out.sensitivities.push_back(
+                {parameter, target, value, sensitivity, value / lambda0 * sensitivity});
+        };
+        for (std::size_t m = 0; m < sites.size(); ++m)
+            push("arrival", sites[m], r.arrival[static_cast<Eigen::Index>(m)],
+                 d_a[static_cast<Eigen::Index>(m)]);
+        for (std::size_t m = 0; m < sites.size(); ++m)
+            push("establishment", sites[m], r.establishment[static_cast<Eigen::Index>(m)],
+                 d_e[static_cast<Eigen::Index>(m)]);
+        if (model.chain) {
+            // dλ/dθ = Σ_m (dλ/da_m)(∂a_m/∂θ): chain rule through the arrival derivatives.
+            const arrival::ArrivalDerivatives da = arrival::arrival_derivatives(*model.chain);
+            const Eigen::VectorXd d_cover = da.d_cover.transpose() * d_a;
+            const Eigen::VectorXd d_hazard = da.d_hazard_per_day.transpose() * d_a;
+            for (std::size_t f = 0; f < sites.size(); ++f) {
+                if (f == model.bare) continue;
+                push("cover", sites[f], model.chain->cover[static_cast<Eigen::Index>(f)],
+                     d_cover[static_cast<Eigen::Index>(f)]);
+            }
+            for (std::size_t m = 0; m < sites.size(); ++m)
+                push("hazard", sites[m], model.chain->hazard_per_day[static_cast<Eigen::Index>(m)],
+                     d_hazard[static_cast<Eigen::Index>(m)]);
+        }
+        const KernelResult& p = out.pooled();
+        if (juveniles)
+            out.sensitivities.push_back({"juvenile_survival", "", KernelResult::nan,
+                                         p.juvenile_sensitivity, p.juvenile_elasticity});
+    }
+
+    // Break-even bare-soil establishment for every neighbour form, and for all forms at once.
+    if (model.break_even && model.layout.microsites.size() > 1) {
+        const RecruitmentParameters base = baseline_recruitment(model, pooled_index);
+        const auto bare = static_cast<Eigen::Index>(model.bare);
+        auto solve = [&](const std::string& form, const std::vector<Eigen::Index>& moved) {
+            RecruitmentParameters r = base;
+            double a_moved = 0.0;
+            for (Eigen::Index f : moved) {
+                a_moved += r.arrival[f];
+                r.arrival[bare] += r.arrival[f];
+                r.arrival[f] = 0.0;
+            }
+            auto lambda_of_e = [&](double e_bare) {
+                RecruitmentParameters q = r;
+                q.establishment[bare] = e_bare;
+                return lambda_of(mesh, pooled_curves, q, eviction);
+            };
+            BreakEvenResult b;
+            b.form = form;
+            b.arrival_form = a_moved;
+            b.establishment_bare = base.establishment[bare];
+            b.lambda_baseline = lambda0;
+            b.solution = solve_break_even(lambda_of_e, lambda0, 0.0, 1.0);
+            out.break_even.push_back(b);
+        };
+        std::vector<Eigen::Index> all;
+        for (std::size_t f = 0; f < model.layout.microsites.size(); ++f) {
+            if (f == model.bare) continue;
+            all.push_back(static_cast<Eigen::Index>(f));
+            solve(model.layout.microsites[f], {static_cast<Eigen::Index>(f)});
+        }
+        if (all.size() > 1) solve("all", all);
+    }
+    return out;
+}
+
+}  // namespace safesite::pipeline
