@@ -1,0 +1,187 @@
+#include "safesite/pipeline/tables.hpp"
+
+#include <cmath>
+#include <string>
+
+namespace safesite::pipeline {
+
+namespace {
+
+using report::Cell;
+using report::TidyTable;
+
+// A double cell, or an empty cell when the value was not computed (NaN).
+Cell num(double x) { return std::isnan(x) ? report::missing() : report::number(x); }
+Cell txt(const std::string& s) { return report::text(s); }
+
+std::string stage_name(const KernelLayout& layout, std::size_t k) {
+    return layout.juvenile == JuvenileMode::seedling_class && k >= layout.microsites.size()
+               ? "first-year"
+               : "established";
+}
+
+std::string class_label(const KernelLayout& layout, std::size_t k) {
+    const std::string& site = layout.microsites[k % layout.microsites.size()];
+    return stage_name(layout, k) == "first-year" ? site + " (first-year)" : site;
+}
+
+TidyTable lambda_table(const AnalysisResult& r) {
+    TidyTable t{"lambda", {"kernel", "lambda", "r0", "generation_time", "mesh_points"}, {}};
+    for (const auto& k : r.kernels)
+        t.rows.push_back({txt(k.label), num(k.lambda), num(k.r0), num(k.generation_time),
+                          report::integer(static_cast<std::int64_t>(k.points))});
+    return t;
+}
+
+TidyTable perturbation_table(const AnalysisResult& r) {
+    TidyTable t{"perturbation",
+                {"kernel", "change", "survival_factor", "lambda", "delta_lambda"},
+                {}};
+    for (const auto& k : r.kernels)
+        for (const auto& p : k.perturbation)
+            t.rows.push_back({txt(k.label), num(p.change), num(1.0 + p.change), num(p.lambda),
+                              num(p.lambda - k.lambda)});
+    return t;
+}
+
+// Stable structure or reproductive value, one row per kernel × class × mesh node.
+TidyTable structure_table(const AnalysisResult& r, bool reproductive) {
+    TidyTable t;
+    if (reproductive) {
+        t = {"reproductive_value", {"kernel", "microsite", "stage", "size", "value"}, {}};
+    } else {
+        t = {"stable_structure",
+             {"kernel", "microsite", "stage", "size", "density", "proportion"},
+             {}};
+    }
+    const std::size_t n_sites = r.layout.microsites.size();
+    for (const auto& k : r.kernels) {
+        const auto n = k.nodes.size();
+        const auto classes = n > 0 ? static_cast<std::size_t>(k.w.size() / n) : 0;
+        for (std::size_t c = 0; c < classes; ++c) {
+            for (Eigen::Index i = 0; i < n; ++i) {
+                const Eigen::Index at = static_cast<Eigen::Index>(c) * n + i;
+                std::vector<Cell> row{txt(k.label), txt(r.layout.microsites[c % n_sites]),
+                                      txt(stage_name(r.layout, c)), num(k.nodes[i])};
+                if (reproductive) {
+                    row.push_back(num(k.v[at]));
+                } else {
+                    row.push_back(num(k.w[at]));
+                    row.push_back(num(k.w[at] * k.weights[i]));
+                }
+                t.rows.push_back(std::move(row));
+            }
+        }
+    }
+    return t;
+}
+
+TidyTable arrival_table(const AnalysisResult& r) {
+    TidyTable t{"arrival", {"scenario", "microsite", "fraction", "source"}, {}};
+    const std::string source =
+        r.arrival_source == ArrivalSource::given ? "given" : "experiments";
+    const KernelResult& pooled = r.pooled();
+    for (std::size_t m = 0; m < r.layout.microsites.size(); ++m)
+        t.rows.push_back({txt("baseline"), txt(r.layout.microsites[m]),
+                          num(pooled.arrival[static_cast<Eigen::Index>(m)]), txt(source)});
+    for (const auto& s : r.scenarios)
+        for (std::size_t m = 0; m < r.layout.microsites.size(); ++m)
+            t.rows.push_back({txt(s.name), txt(r.layout.microsites[m]),
+                              num(s.arrival[static_cast<Eigen::Index>(m)]), txt("scenario")});
+    return t;
+}
+
+TidyTable scenario_table(const AnalysisResult& r) {
+    TidyTable t{"scenarios", {"scenario", "kernel", "lambda", "delta_lambda", "lost"}, {}};
+    for (const auto& s : r.scenarios) {
+        t.rows.push_back(
+            {txt(s.name), txt("pooled"), num(s.lambda_pooled), num(s.delta_pooled), num(s.lost)});
+        for (std::size_t y = 0; y < s.lambda_years.size(); ++y)
+            t.rows.push_back({txt(s.name), txt(r.kernels[y].label), num(s.lambda_years[y]),
+                              num(s.delta_years[y]), num(s.lost)});
+    }
+    return t;
+}
+
+TidyTable sensitivity_table(const AnalysisResult& r) {
+    TidyTable t{"sensitivities",
+                {"kernel", "parameter", "target", "value", "sensitivity", "elasticity"},
+                {}};
+    for (const auto& s : r.sensitivities)
+        t.rows.push_back({txt("pooled"), txt(s.parameter), txt(s.target), num(s.value),
+                          num(s.sensitivity), num(s.elasticity)});
+    // Juvenile survival for every census year (the pooled row is among the above).
+    for (std::size_t y = 0; y + 1 < r.kernels.size(); ++y) {
+        const auto& k = r.kernels[y];
+        if (std::isnan(k.juvenile_sensitivity)) continue;
+        t.rows.push_back({txt(k.label), txt("juvenile_survival"), txt(""), report::missing(),
+                          num(k.juvenile_sensitivity), num(k.juvenile_elasticity)});
+    }
+    return t;
+}
+
+TidyTable break_even_table(const AnalysisResult& r) {
+    TidyTable t{"break_even",
+                {"form", "arrival_moved", "establishment_bare", "lambda_baseline",
+                 "break_even_establishment", "status", "lambda_at_0", "lambda_at_1"},
+                {}};
+    for (const auto& b : r.break_even)
+        t.rows.push_back({txt(b.form), num(b.arrival_form), num(b.establishment_bare),
+                          num(b.lambda_baseline), num(b.solution.value),
+                          txt(b.solution.status_name()), num(b.solution.lambda_lo),
+                          num(b.solution.lambda_hi)});
+    return t;
+}
+
+TidyTable diagnostics_table(const AnalysisResult& r) {
+    TidyTable t{"diagnostics", {"kernel", "diagnostic", "target", "value", "message"}, {}};
+    for (const auto& k : r.kernels) {
+        if (!std::isnan(k.lambda_refined)) {
+            t.rows.push_back({txt(k.label), txt("lambda_mesh_n"), txt(""), num(k.lambda),
+                              txt(std::to_string(k.points) + " points")});
+            t.rows.push_back({txt(k.label), txt("lambda_mesh_2n"), txt(""), num(k.lambda_refined),
+                              txt(std::to_string(2 * k.points) + " points")});
+            t.rows.push_back({txt(k.label), txt("mesh_relative_change"), txt(""),
+                              num(std::abs(k.lambda_refined - k.lambda) / k.lambda), txt("")});
+        }
+        for (std::size_t c = 0; c < k.max_evicted_growth.size(); ++c)
+            t.rows.push_back({txt(k.label), txt("max_evicted_growth"),
+                              txt(class_label(r.layout, c)), num(k.max_evicted_growth[c]),
+                              txt("largest growth mass off the mesh over parent sizes")});
+        for (std::size_t m = 0; m < k.evicted_recruits.size(); ++m)
+            t.rows.push_back({txt(k.label), txt("evicted_recruits"), txt(r.layout.microsites[m]),
+                              num(k.evicted_recruits[m]), txt("recruit-size mass off the mesh")});
+    }
+    for (const auto& w : r.warnings)
+        t.rows.push_back({txt(""), txt("warning"), txt(""), report::missing(), txt(w)});
+    return t;
+}
+
+TidyTable assumptions_table(const AnalysisResult& r) {
+    TidyTable t{"assumptions", {"number", "assumption"}, {}};
+    for (std::size_t i = 0; i < r.assumptions.size(); ++i)
+        t.rows.push_back({report::integer(static_cast<std::int64_t>(i + 1)), txt(r.assumptions[i])});
+    return t;
+}
+
+}  // namespace
+
+std::vector<report::TidyTable> analysis_tables(const AnalysisResult& result) {
+    return {lambda_table(result),       perturbation_table(result),
+            structure_table(result, false), structure_table(result, true),
+            arrival_table(result),      scenario_table(result),
+            sensitivity_table(result),  break_even_table(result),
+            diagnostics_table(result),  assumptions_table(result)};
+}
+
+report::TidyTable establishment_table(const EstablishmentEstimate& estimate) {
+    TidyTable t{"establishment",
+                {"year", "microsite", "seeds", "arrival", "recruits", "establishment", "source"},
+                {}};
+    for (const auto& row : estimate.rows)
+        t.rows.push_back({txt(row.year), txt(row.microsite), num(row.seeds), num(row.arrival),
+                          num(row.recruits), num(row.establishment), txt("census")});
+    return t;
+}
+
+}  // namespace safesite::pipeline
