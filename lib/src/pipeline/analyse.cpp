@@ -1,9 +1,10 @@
 #include "safesite/pipeline/analyse.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <memory>
 
-#include "detail/analysis_bridge.hpp"
+#include "pipeline/detail/analysis_bridge.hpp"
 #include "safesite/arrival/arrival_chain.hpp"
 #include "safesite/error.hpp"
 #include "safesite/kernel/kernel_operator.hpp"
@@ -94,7 +95,9 @@ Eigen::VectorXd scaled_establishment(const PreparedModel& model, const Eigen::Ve
         if (!(factor >= 0.0) || !std::isfinite(factor))
             throw UsageError("scenario '" + scenario.name +
                              "': establishment factor must be finite and >= 0");
-        out[static_cast<Eigen::Index>(m)] *= factor;
+        // e_m ← min(1, factor · e_m): establishment is a probability.
+        const auto mi = static_cast<Eigen::Index>(m);
+        out[mi] = std::min(1.0, factor * out[mi]);
     }
     return out;
 }
