@@ -1,0 +1,177 @@
+#include "safesite/pipeline/fixed_model.hpp"
+
+#include <algorithm>
+#include <numeric>
+
+#include "pipeline/detail/bound_rates.hpp"
+#include "pipeline/detail/spec_settings.hpp"
+#include "safesite/error.hpp"
+#include "safesite/stats/design_spec.hpp"
+#include "safesite/stats/family.hpp"
+#include "safesite/stats/formula.hpp"
+
+namespace safesite::pipeline {
+
+namespace {
+
+SourceLocation key_at(const spec::RateSpec& rate, const std::string& key) {
+    SourceLocation at = rate.at;
+    at.key = "rates." + rate.name + "." + key;
+    return at;
+}
+
+// A table with every column a vital-rate formula may read, to learn the design (factor
+// levels) of a fixed regression: the kernel covariates plus the responses.
+stats::Table level_template(const KernelLayout& layout) {
+    Eigen::VectorXd sizes(3);
+    sizes << 0.0, 1.0, 2.0;
+    stats::Table t = covariate_table(layout, sizes, 0, false,
+                                     layout.year_levels.empty() ? "pooled"
+                                                                : layout.year_levels.front());
+    t.add_numeric("size_next", {0.0, 1.0, 2.0});
+    t.add_numeric("survived", {0.0, 1.0, 1.0});
+    t.add_numeric("flowered", {0.0, 1.0, 1.0});
+    t.add_numeric("seeds", {0.0, 1.0, 2.0});
+    return t;
+}
+
+// β of a fixed rate, in design-column order, from the `coefficients` map; every design
+// column needs a value and every value a design column.
+Eigen::VectorXd fixed_beta(const spec::RateSpec& rate, const stats::DesignSpec& design) {
+    const auto& given = *rate.coefficients;
+    const auto& names = design.column_names();
+    Eigen::VectorXd beta(static_cast<Eigen::Index>(names.size()));
+    for (std::size_t j = 0; j < names.size(); ++j) {
+        const auto it = given.find(names[j]);
+        if (it == given.end())
+            throw SpecError(key_at(rate, "coefficients"),
+                            "no coefficient for design column '" + names[j] + "' of formula '" +
+                                rate.formula + "'");
+        beta[static_cast<Eigen::Index>(j)] = it->second;
+    }
+    for (const auto& [name, value] : given) {
+        (void)value;
+        if (std::find(names.begin(), names.end(), name) == names.end()) {
+            std::string list;
+            for (const auto& n : names) list += (list.empty() ? "" : ", ") + n;
+            throw SpecError(key_at(rate, "coefficients"),
+                            "coefficient '" + name + "' is not a design column of formula '" +
+                                rate.formula + "' (columns: " + list + ")");
+        }
+    }
+    return beta;
+}
+
+BoundRate fixed_bound_rate(const spec::RateSpec& rate, const stats::Table& templ,
+                           double shift_of_year, const std::string& label) {
+    if (!rate.is_fixed())
+        throw SpecError(key_at(rate, "coefficients"),
+                        "rate '" + rate.name + "' has no fixed coefficients");
+    const auto family = stats::parse_family(rate.family);
+    const auto link = stats::parse_link(rate.link);
+    if (!family || !link)
+        throw SpecError(key_at(rate, "family"), "unknown family or link for rate " + rate.name);
+    const stats::Formula formula =
+        stats::parse_formula(rate.formula, "rates." + rate.name + ".formula");
+    std::vector<std::size_t> rows(templ.rows());
+    std::iota(rows.begin(), rows.end(), std::size_t{0});
+    stats::DesignSpec design = stats::DesignSpec::learn(formula, templ, rows);
+    Eigen::VectorXd beta = fixed_beta(rate, design);
+    std::map<std::string, double> shift;
+    if (shift_of_year != 0.0) shift[label] = shift_of_year;
+
+    BoundRate out;
+    out.mean = detail::glm_mean(std::move(design), std::move(beta), *link, std::move(shift));
+    if (*family == stats::Family::gaussian) {
+        if (!rate.sd || !(*rate.sd > 0.0))
+            throw SpecError(key_at(rate, "sd"), "a fixed gaussian rate needs sd > 0");
+        out.sd = detail::constant_sd(*rate.sd);
+    } else if (*family == stats::Family::gaussian_spread) {
+        if (rate.spread_coefficients.size() != 2)
+            throw SpecError(key_at(rate, "spread_coefficients"),
+                            "a fixed gaussian-spread rate needs spread_coefficients = [g0, g1]");
+        out.sd = detail::spread_sd(rate.spread.value_or("size"), rate.spread_coefficients[0],
+                                   rate.spread_coefficients[1]);
+    }
+    return out;
+}
+
+}  // namespace
+
+KernelRates fixed_kernel_rates(const spec::ModelSpec& model, const std::string& label,
+                               const std::map<std::string, double>& shift_by_rate,
+                               const std::vector<std::string>& year_levels) {
+    KernelLayout layout = detail::kernel_layout(model, year_levels);
+    const stats::Table templ = level_template(layout);
+    auto shift = [&](const char* rate) {
+        const auto it = shift_by_rate.find(rate);
+        return it == shift_by_rate.end() ? 0.0 : it->second;
+    };
+    KernelRates r;
+    r.label = label;
+    r.survival = fixed_bound_rate(model.rate("survival"), templ, shift("survival"), label);
+    r.growth = fixed_bound_rate(model.rate("growth"), templ, shift("growth"), label);
+    r.flowering = fixed_bound_rate(model.rate("flowering"), templ, shift("flowering"), label);
+    r.seeds = fixed_bound_rate(model.rate("seeds"), templ, shift("seeds"), label);
+    r.recruit_size =
+        fixed_bound_rate(model.rate("recruit_size"), templ, shift("recruit_size"), label);
+    return r;
+}
+
+PreparedModel prepare_fixed(const spec::ModelSpec& model, const FixedModelOptions& options) {
+    PreparedModel out;
+    out.layout = detail::kernel_layout(model, options.years);
+    out.bare = model.microsites.bare_index;
+
+    std::pair<double, double> bounds;
+    if (options.mesh_bounds) {
+        bounds = *options.mesh_bounds;
+    } else if (model.mesh.lower && model.mesh.upper) {
+        bounds = {*model.mesh.lower, *model.mesh.upper};
+    } else {
+        throw SpecError({model.file.string(), 0, 0, "mesh.lower"},
+                        "a model without census data needs [mesh] lower and upper");
+    }
+    spec::MeshSpec mesh = model.mesh;
+    mesh.lower = bounds.first;
+    mesh.upper = bounds.second;
+    out.mesh = detail::mesh_settings(mesh, bounds);
+
+    for (const auto& year : options.years) {
+        const auto shifts_of = [&](const std::string& y) {
+            std::map<std::string, double> s;
+            for (const auto& [rate, by_year] : options.shifts) {
+                const auto it = by_year.find(y);
+                if (it != by_year.end()) s[rate] = it->second;
+            }
+            return s;
+        };
+        out.years.push_back(fixed_kernel_rates(model, year, shifts_of(year), options.years));
+    }
+    out.pooled = fixed_kernel_rates(model, "pooled", {}, options.years);
+
+    const auto n_sites = static_cast<Eigen::Index>(model.microsites.labels.size());
+    if (model.arrival.method != spec::ArrivalMethod::fractions ||
+        static_cast<Eigen::Index>(model.arrival.fractions.size()) != n_sites)
+        throw SpecError({model.file.string(), model.arrival.at.line, 0, "arrival.fractions"},
+                        "a model without data needs the arrival fractions given directly");
+    out.arrival = Eigen::Map<const Eigen::VectorXd>(model.arrival.fractions.data(), n_sites);
+    out.arrival_source = ArrivalSource::given;
+
+    if (model.establishment.method != spec::EstablishmentMethod::fixed ||
+        static_cast<Eigen::Index>(model.establishment.values.size()) != n_sites)
+        throw SpecError({model.file.string(), 0, 0, "establishment.method"},
+                        "a model without census data needs [establishment] method = \"fixed\" "
+                        "with values");
+    out.establishment_pooled =
+        Eigen::Map<const Eigen::VectorXd>(model.establishment.values.data(), n_sites);
+    out.establishment_by_year.assign(options.years.size(), out.establishment_pooled);
+
+    out.survival_changes = model.perturbation.survival_changes;
+    for (const auto& s : model.scenarios)
+        out.scenarios.push_back(detail::scenario_settings(s, model.microsites));
+    out.assumptions = detail::pipeline_assumptions(model);
+    return out;
+}
+
+}  // namespace safesite::pipeline
