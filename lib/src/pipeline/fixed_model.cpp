@@ -1,12 +1,12 @@
 #include "safesite/pipeline/fixed_model.hpp"
 
 #include <algorithm>
-#include <numeric>
+#include <array>
 
 #include "pipeline/detail/bound_rates.hpp"
 #include "pipeline/detail/spec_settings.hpp"
 #include "safesite/error.hpp"
-#include "safesite/stats/design_spec.hpp"
+#include "safesite/stats/glm.hpp"
 #include "safesite/stats/family.hpp"
 #include "safesite/stats/formula.hpp"
 
@@ -35,33 +35,6 @@ stats::Table level_template(const KernelLayout& layout) {
     return t;
 }
 
-// β of a fixed rate, in design-column order, from the `coefficients` map; every design
-// column needs a value and every value a design column.
-Eigen::VectorXd fixed_beta(const spec::RateSpec& rate, const stats::DesignSpec& design) {
-    const auto& given = *rate.coefficients;
-    const auto& names = design.column_names();
-    Eigen::VectorXd beta(static_cast<Eigen::Index>(names.size()));
-    for (std::size_t j = 0; j < names.size(); ++j) {
-        const auto it = given.find(names[j]);
-        if (it == given.end())
-            throw SpecError(key_at(rate, "coefficients"),
-                            "no coefficient for design column '" + names[j] + "' of formula '" +
-                                rate.formula + "'");
-        beta[static_cast<Eigen::Index>(j)] = it->second;
-    }
-    for (const auto& [name, value] : given) {
-        (void)value;
-        if (std::find(names.begin(), names.end(), name) == names.end()) {
-            std::string list;
-            for (const auto& n : names) list += (list.empty() ? "" : ", ") + n;
-            throw SpecError(key_at(rate, "coefficients"),
-                            "coefficient '" + name + "' is not a design column of formula '" +
-                                rate.formula + "' (columns: " + list + ")");
-        }
-    }
-    return beta;
-}
-
 BoundRate fixed_bound_rate(const spec::RateSpec& rate, const stats::Table& templ,
                            double shift_of_year, const std::string& label) {
     if (!rate.is_fixed())
@@ -71,29 +44,28 @@ BoundRate fixed_bound_rate(const spec::RateSpec& rate, const stats::Table& templ
     const auto link = stats::parse_link(rate.link);
     if (!family || !link)
         throw SpecError(key_at(rate, "family"), "unknown family or link for rate " + rate.name);
-    const stats::Formula formula =
-        stats::parse_formula(rate.formula, "rates." + rate.name + ".formula");
-    std::vector<std::size_t> rows(templ.rows());
-    std::iota(rows.begin(), rows.end(), std::size_t{0});
-    stats::DesignSpec design = stats::DesignSpec::learn(formula, templ, rows);
-    Eigen::VectorXd beta = fixed_beta(rate, design);
+    stats::FixedExtras extras;
+    extras.sigma = rate.sd;
+    if (rate.spread_coefficients.size() == 2)
+        extras.spread = std::array<double, 2>{rate.spread_coefficients[0],
+                                              rate.spread_coefficients[1]};
+    extras.theta = rate.theta;
+    extras.spread_column = rate.spread.value_or("size");
+    stats::GlmFit fit;
+    try {
+        fit = stats::fixed_glm(rate.formula, *rate.coefficients, *family, *link, templ, extras);
+    } catch (const SpecError& e) {
+        // Re-anchor the coefficient error at the rate's table in the model file.
+        throw SpecError(key_at(rate, "coefficients"), e.reason());
+    } catch (const UsageError& e) {
+        throw SpecError(key_at(rate, *family == stats::Family::gaussian_spread
+                                         ? "spread_coefficients"
+                                         : (*family == stats::Family::negbin ? "theta" : "sd")),
+                        e.what());
+    }
     std::map<std::string, double> shift;
     if (shift_of_year != 0.0) shift[label] = shift_of_year;
-
-    BoundRate out;
-    out.mean = detail::glm_mean(std::move(design), std::move(beta), *link, std::move(shift));
-    if (*family == stats::Family::gaussian) {
-        if (!rate.sd || !(*rate.sd > 0.0))
-            throw SpecError(key_at(rate, "sd"), "a fixed gaussian rate needs sd > 0");
-        out.sd = detail::constant_sd(*rate.sd);
-    } else if (*family == stats::Family::gaussian_spread) {
-        if (rate.spread_coefficients.size() != 2)
-            throw SpecError(key_at(rate, "spread_coefficients"),
-                            "a fixed gaussian-spread rate needs spread_coefficients = [g0, g1]");
-        out.sd = detail::spread_sd(rate.spread.value_or("size"), rate.spread_coefficients[0],
-                                   rate.spread_coefficients[1]);
-    }
-    return out;
+    return detail::glm_rate(fit, std::move(shift));
 }
 
 }  // namespace

@@ -4,7 +4,6 @@
 #include <numeric>
 #include <vector>
 
-#include "safesite/stats/formula.hpp"
 #include "safesite/stats/grouping_factor.hpp"
 
 namespace safesite::pipeline::detail {
@@ -19,22 +18,26 @@ std::vector<std::size_t> all_rows(const stats::Table& t) {
 
 }  // namespace
 
-TablePrediction glm_mean(stats::DesignSpec design, Eigen::VectorXd beta, stats::Link link,
-                         std::map<std::string, double> shift) {
-    return [design = std::move(design), beta = std::move(beta), link,
-            shift = std::move(shift)](const stats::Table& table) {
-        const auto rows = all_rows(table);
-        Eigen::VectorXd eta = design.model_matrix(table, rows) * beta + design.offset(table, rows);
-        if (!shift.empty() && table.has("year")) {
+BoundRate glm_rate(const stats::GlmFit& fit, std::map<std::string, double> shift) {
+    BoundRate out;
+    if (shift.empty()) {
+        out.mean = [fit](const stats::Table& table) { return fit.predict(table); };
+    } else {
+        out.mean = [fit, shift = std::move(shift)](const stats::Table& table) {
+            Eigen::VectorXd eta = fit.predict(table, stats::Scale::link);
             const auto& year = table.categorical("year").values;
-            for (std::size_t i = 0; i < rows.size(); ++i) {
+            for (std::size_t i = 0; i < year.size(); ++i) {
                 const auto it = shift.find(year[i]);
                 if (it != shift.end()) eta[static_cast<Eigen::Index>(i)] += it->second;
             }
-        }
-        for (Eigen::Index i = 0; i < eta.size(); ++i) eta[i] = stats::inverse_link(link, eta[i]);
-        return eta;
-    };
+            for (Eigen::Index i = 0; i < eta.size(); ++i)
+                eta[i] = stats::inverse_link(fit.link, eta[i]);
+            return eta;
+        };
+    }
+    if (fit.family == stats::Family::gaussian || fit.family == stats::Family::gaussian_spread)
+        out.sd = [fit](const stats::Table& table) { return fit.sd(table); };
+    return out;
 }
 
 TablePrediction mixed_mean(stats::DesignSpec design, stats::MixedFit fit,
@@ -61,24 +64,6 @@ TablePrediction mixed_mean(stats::DesignSpec design, stats::MixedFit fit,
             year.slope_name = slope_column;
         }
         return fit.inverse_link(fit.linear_predictor(X, offset, {year}, true));
-    };
-}
-
-TablePrediction constant_sd(double sd) {
-    return [sd](const stats::Table& table) {
-        return Eigen::VectorXd::Constant(static_cast<Eigen::Index>(table.rows()), sd);
-    };
-}
-
-TablePrediction spread_sd(std::string spread, double gamma0, double gamma1) {
-    // x is built as the single column of the one-sided formula `~ <spread> - 1`; a column,
-    // log() or pow() learns no constants, so learning on the prediction table is exact.
-    const stats::Formula formula = stats::parse_formula("~ " + spread + " - 1", spread);
-    return [formula, gamma0, gamma1](const stats::Table& table) {
-        const auto rows = all_rows(table);
-        const stats::DesignSpec design = stats::DesignSpec::learn(formula, table, rows);
-        const Eigen::VectorXd x = design.model_matrix(table, rows).col(0);
-        return Eigen::VectorXd((gamma0 + gamma1 * x.array()).exp());
     };
 }
 

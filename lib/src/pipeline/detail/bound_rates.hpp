@@ -10,28 +10,22 @@
 
 #include "safesite/pipeline/kernel_rates.hpp"
 #include "safesite/stats/design_spec.hpp"
+#include "safesite/stats/glm.hpp"
 #include "safesite/stats/family.hpp"
 #include "safesite/stats/mixed_fit.hpp"
 
 namespace safesite::pipeline::detail {
 
-/// g⁻¹(X β + offset + shift[year]) for a GLM (or the fixed part of a mixed model); `shift`
-/// maps year labels to an additive change of the linear predictor (truth files; empty for
-/// fitted models).
-TablePrediction glm_mean(stats::DesignSpec design, Eigen::VectorXd beta, stats::Link link,
-                         std::map<std::string, double> shift = {});
+/// A fitted or fixed GLM bound for kernels: mean g⁻¹(η + shift[year]) with η the fit's
+/// linear predictor on the new rows; `shift` maps year labels to an additive change of η
+/// (truth files; empty for fitted models). For the Gaussian families `sd` is the fit's
+/// residual SD per row.
+BoundRate glm_rate(const stats::GlmFit& fit, std::map<std::string, double> shift = {});
 
 /// g⁻¹(X β + offset + b_year + b_year,slope x) with the conditional modes of the row's year
 /// (0 for a year the fit did not see); other grouping factors contribute 0.
 /// `slope_column` names the random-slope covariate ("" for none).
 TablePrediction mixed_mean(stats::DesignSpec design, stats::MixedFit fit,
                            std::string slope_column);
-
-/// A constant SD (Gaussian residual SD), > 0.
-TablePrediction constant_sd(double sd);
-
-/// SD = exp(γ0 + γ1 x) with x the numeric expression `spread` (a column, `log(col)`, ...)
-/// evaluated on the table (gaussian-spread growth).
-TablePrediction spread_sd(std::string spread, double gamma0, double gamma1);
 
 }  // namespace safesite::pipeline::detail
