@@ -4,6 +4,7 @@
 #include <array>
 
 #include "pipeline/detail/bound_rates.hpp"
+#include "pipeline/detail/rate_fit.hpp"
 #include "pipeline/detail/spec_settings.hpp"
 #include "safesite/error.hpp"
 #include "safesite/stats/glm.hpp"
@@ -35,8 +36,13 @@ stats::Table level_template(const KernelLayout& layout) {
     return t;
 }
 
-BoundRate fixed_bound_rate(const spec::RateSpec& rate, const stats::Table& templ,
-                           double shift_of_year, const std::string& label) {
+}  // namespace
+
+namespace detail {
+
+BoundRate fixed_rate(const spec::RateSpec& rate, const KernelLayout& layout,
+                     double shift_of_year, const std::string& label) {
+    const stats::Table templ = level_template(layout);
     if (!rate.is_fixed())
         throw SpecError(key_at(rate, "coefficients"),
                         "rate '" + rate.name + "' has no fixed coefficients");
@@ -68,25 +74,26 @@ BoundRate fixed_bound_rate(const spec::RateSpec& rate, const stats::Table& templ
     return detail::glm_rate(fit, std::move(shift));
 }
 
-}  // namespace
+}  // namespace detail
 
 KernelRates fixed_kernel_rates(const spec::ModelSpec& model, const std::string& label,
                                const std::map<std::string, double>& shift_by_rate,
                                const std::vector<std::string>& year_levels) {
-    KernelLayout layout = detail::kernel_layout(model, year_levels);
-    const stats::Table templ = level_template(layout);
+    const KernelLayout layout = detail::kernel_layout(model, year_levels);
     auto shift = [&](const char* rate) {
         const auto it = shift_by_rate.find(rate);
         return it == shift_by_rate.end() ? 0.0 : it->second;
     };
+    auto bind = [&](const char* rate) {
+        return detail::fixed_rate(model.rate(rate), layout, shift(rate), label);
+    };
     KernelRates r;
     r.label = label;
-    r.survival = fixed_bound_rate(model.rate("survival"), templ, shift("survival"), label);
-    r.growth = fixed_bound_rate(model.rate("growth"), templ, shift("growth"), label);
-    r.flowering = fixed_bound_rate(model.rate("flowering"), templ, shift("flowering"), label);
-    r.seeds = fixed_bound_rate(model.rate("seeds"), templ, shift("seeds"), label);
-    r.recruit_size =
-        fixed_bound_rate(model.rate("recruit_size"), templ, shift("recruit_size"), label);
+    r.survival = bind("survival");
+    r.growth = bind("growth");
+    r.flowering = bind("flowering");
+    r.seeds = bind("seeds");
+    r.recruit_size = bind("recruit_size");
     return r;
 }
 

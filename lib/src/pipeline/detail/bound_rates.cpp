@@ -40,18 +40,18 @@ BoundRate glm_rate(const stats::GlmFit& fit, std::map<std::string, double> shift
     return out;
 }
 
-TablePrediction mixed_mean(stats::DesignSpec design, stats::MixedFit fit,
+TablePrediction mixed_mean(stats::DesignSpec design, stats::MixedFit fit, bool year_effects,
                            std::string slope_column) {
-    return [design = std::move(design), fit = std::move(fit),
+    return [design = std::move(design), fit = std::move(fit), year_effects,
             slope_column = std::move(slope_column)](const stats::Table& table) {
         const auto rows = all_rows(table);
         const Eigen::MatrixXd X = design.model_matrix(table, rows);
         const Eigen::VectorXd offset = design.offset(table, rows);
+        if (!year_effects) return fit.inverse_link(fit.linear_predictor(X, offset, {}, false));
         // The year factor of the new rows, matched to the fitted levels by label.
         stats::GroupingFactor year;
         year.name = "year";
-        const auto& labels = table.categorical("year").values;
-        for (const auto& label : labels) {
+        for (const auto& label : table.categorical("year").values) {
             std::size_t k = 0;
             while (k < year.level_names.size() && year.level_names[k] != label) ++k;
             if (k == year.level_names.size()) year.level_names.push_back(label);
@@ -64,6 +64,12 @@ TablePrediction mixed_mean(stats::DesignSpec design, stats::MixedFit fit,
             year.slope_name = slope_column;
         }
         return fit.inverse_link(fit.linear_predictor(X, offset, {year}, true));
+    };
+}
+
+TablePrediction constant_sd(double sd) {
+    return [sd](const stats::Table& table) {
+        return Eigen::VectorXd::Constant(static_cast<Eigen::Index>(table.rows()), sd);
     };
 }
 

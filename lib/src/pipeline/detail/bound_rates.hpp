@@ -22,10 +22,14 @@ namespace safesite::pipeline::detail {
 /// residual SD per row.
 BoundRate glm_rate(const stats::GlmFit& fit, std::map<std::string, double> shift = {});
 
-/// g⁻¹(X β + offset + b_year + b_year,slope x) with the conditional modes of the row's year
-/// (0 for a year the fit did not see); other grouping factors contribute 0.
-/// `slope_column` names the random-slope covariate ("" for none).
-TablePrediction mixed_mean(stats::DesignSpec design, stats::MixedFit fit,
+/// g⁻¹(X β + offset [+ b_year + b_year,slope x]) from a mixed model: with `year_effects`
+/// the conditional modes of the row's year are added (0 for a year the fit did not see);
+/// other grouping factors (plot, plant) always contribute 0 (population-level rates).
+/// `slope_column` names the random-slope covariate of year ("" for none).
+TablePrediction mixed_mean(stats::DesignSpec design, stats::MixedFit fit, bool year_effects,
                            std::string slope_column);
+
+/// A constant SD (Gaussian residual SD), > 0.
+TablePrediction constant_sd(double sd);
 
 }  // namespace safesite::pipeline::detail
