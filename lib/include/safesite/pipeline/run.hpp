@@ -1,0 +1,33 @@
+#pragma once
+/// \file run.hpp
+/// `safesite run` and `safesite eval` as library calls: fit (or read the fixed model), then
+/// every analysis; the results as the output tables of docs/formats.md ("Output tables").
+
+#include <vector>
+
+#include "safesite/pipeline/analyse.hpp"
+#include "safesite/pipeline/fit.hpp"
+#include "safesite/report/tidy_table.hpp"
+#include "safesite/spec/model_spec.hpp"
+
+namespace safesite::pipeline {
+
+/// Everything a run computes.
+struct RunResult {
+    FitResult fit;
+    AnalysisResult analysis;
+};
+
+/// fit(model) then analyse(). Errors as for fit() and analyse().
+RunResult run(const spec::ModelSpec& model);
+
+/// A model whose rates are all given (`safesite eval`): prepare_fixed then analyse; no data
+/// are read. Errors as for prepare_fixed() and analyse().
+RunResult evaluate_fixed(const spec::ModelSpec& model);
+
+/// Every output table of a run, in the order: coefficients, model_comparison, establishment,
+/// lambda, perturbation, stable_structure, reproductive_value, arrival, scenarios,
+/// sensitivities, break_even, diagnostics, assumptions (docs/formats.md).
+std::vector<report::TidyTable> run_tables(const RunResult& result);
+
+}  // namespace safesite::pipeline

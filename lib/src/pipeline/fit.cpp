@@ -1,0 +1,233 @@
+#include "safesite/pipeline/fit.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <string>
+
+#include "pipeline/detail/rate_fit.hpp"
+#include "pipeline/detail/spec_settings.hpp"
+#include "safesite/census/transition_data.hpp"
+#include "safesite/error.hpp"
+#include "safesite/pipeline/data_rules.hpp"
+#include "safesite/pipeline/fixed_model.hpp"
+#include "safesite/pipeline/tables.hpp"
+
+namespace safesite::pipeline {
+
+namespace {
+
+// Rows of a table where a numeric 0/1 column equals 1.
+stats::Table rows_where_one(const stats::Table& t, const std::string& column) {
+    std::vector<std::size_t> rows;
+    const auto& x = t.numeric(column);
+    for (std::size_t i = 0; i < x.size(); ++i)
+        if (x[i] == 1.0) rows.push_back(i);
+    return t.select_rows(rows);
+}
+
+// The covariates of the flowering plants alive in census year `year` whose seeds were not
+// counted: a table for the seed model of that year's kernel.
+stats::Table uncounted_flowering(const census::Census& c, int year, const KernelLayout& layout) {
+    std::vector<double> size, seedling;
+    std::vector<std::string> microsite, plot;
+    const auto& records = c.records();
+    for (std::size_t i = 0; i < records.size(); ++i) {
+        const auto& r = records[i];
+        if (r.year != year || r.status != census::Status::alive || !r.flowered || r.seeds)
+            continue;
+        size.push_back(r.size);
+        seedling.push_back(c.is_seedling_row(i) ? 1.0 : 0.0);
+        microsite.push_back(r.microsite);
+        plot.push_back(r.plot);
+    }
+    const std::size_t n = size.size();
+    stats::Table t;
+    t.add_numeric("size", std::move(size));
+    t.add_categorical("microsite", std::move(microsite), layout.microsites);
+    t.add_numeric("seedling", std::move(seedling));
+    t.add_categorical("year", std::vector<std::string>(n, std::to_string(year)),
+                      layout.year_levels);
+    t.add_categorical("plot", std::move(plot));
+    return t;
+}
+
+Eigen::VectorXd given_arrival(const spec::ModelSpec& model) {
+    const auto n = static_cast<Eigen::Index>(model.microsites.labels.size());
+    if (static_cast<Eigen::Index>(model.arrival.fractions.size()) != n)
+        throw SpecError({model.file.string(), model.arrival.at.line, 0, "arrival.fractions"},
+                        "arrival fractions must be given for every microsite");
+    return Eigen::Map<const Eigen::VectorXd>(model.arrival.fractions.data(), n);
+}
+
+}  // namespace
+
+FitResult fit(const spec::ModelSpec& model) {
+    if (!model.data.census) {
+        if (!model.all_rates_fixed())
+            throw SpecError({model.file.string(), 0, 0, "data.census"},
+                            "fitting needs a census ([data] census), or fixed coefficients for "
+                            "every rate");
+        FitResult out;
+        out.model = prepare_fixed(model);
+        for (const auto& name : spec::rate_names()) {
+            const auto& rate = model.rate(name);
+            out.rates.push_back({name, rate.family, rate.link, rate.formula,
+                                 spec::to_string(rate.year), true, 0});
+            const auto rows = detail::given_rows(rate);
+            out.coefficients.insert(out.coefficients.end(), rows.begin(), rows.end());
+        }
+        out.establishment_given = true;
+        return out;
+    }
+    const census::Census c = census::load_census(*model.data.census, spec::to_census_options(model));
+    return fit(model, c);
+}
+
+FitResult fit(const spec::ModelSpec& model, const census::Census& c) {
+    FitResult out;
+    for (const auto& issue : c.report().issues())
+        if (issue.severity == census::Severity::warning)
+            out.warnings.push_back("census: " + issue.message + " (" +
+                                   std::to_string(issue.count) + ")");
+    const census::TransitionData td = census::build_transitions(c);
+    if (td.transitions.rows() == 0)
+        throw DataError({c.file(), 0, 0, "year"},
+                        "the census has no transitions between consecutive census years");
+    const std::vector<std::string> years = td.transitions.categorical("year").levels;
+    const KernelLayout layout = detail::kernel_layout(model, years);
+
+    // Every rate on its rows.
+    std::vector<detail::RateOutcome> outcomes;
+    for (const auto& name : spec::rate_names()) {
+        const spec::RateSpec& rate = model.rate(name);
+        stats::Table data;
+        if (name == "growth")
+            data = rows_where_one(td.transitions, "survived");
+        else if (name == "seeds")
+            data = rows_where_one(td.transitions, "flowered");
+        else if (name == "recruit_size")
+            data = td.recruits;
+        else
+            data = td.transitions;
+        if (!rate.is_fixed() && data.rows() == 0)
+            throw DataError({c.file(), 0, 0, name},
+                            "no census rows to fit the " + name + " model on");
+        outcomes.push_back(detail::fit_rate(rate, data, layout));
+        auto& o = outcomes.back();
+        out.rates.push_back(o.summary);
+        out.coefficients.insert(out.coefficients.end(), o.coefficients.begin(),
+                                o.coefficients.end());
+        out.comparison.insert(out.comparison.end(), o.comparison.begin(), o.comparison.end());
+        out.warnings.insert(out.warnings.end(), o.warnings.begin(), o.warnings.end());
+    }
+    auto kernel_rates = [&](const std::string& label, bool pooled) {
+        KernelRates r;
+        r.label = label;
+        BoundRate* slots[] = {&r.survival, &r.growth, &r.flowering, &r.seeds, &r.recruit_size};
+        for (std::size_t k = 0; k < outcomes.size(); ++k)
+            *slots[k] = pooled ? outcomes[k].pooled : outcomes[k].for_year(label);
+        return r;
+    };
+
+    PreparedModel& m = out.model;
+    m.layout = layout;
+    m.bare = model.microsites.bare_index;
+    for (const auto& y : years) m.years.push_back(kernel_rates(y, false));
+    m.pooled = kernel_rates("pooled", true);
+
+    const auto derived = detail::needs_derived_bounds(model.mesh)
+                             ? derive_mesh_bounds(td.transitions, td.recruits, model.mesh.margin)
+                             : std::pair<double, double>{0.0, 0.0};
+    m.mesh = detail::mesh_settings(model.mesh, derived);
+
+    // Arrival fractions.
+    if (model.arrival.method == spec::ArrivalMethod::fractions) {
+        m.arrival = given_arrival(model);
+        m.arrival_source = ArrivalSource::given;
+    } else {
+        throw SpecError({model.file.string(), model.arrival.at.line, 0, "arrival.method"},
+                        "arrival fractions from the seed experiments are not available in this "
+                        "build (the trapping and retention fits are missing); give [arrival] "
+                        "fractions");
+    }
+
+    // Establishment.
+    const auto n_sites = static_cast<Eigen::Index>(layout.microsites.size());
+    if (model.establishment.method == spec::EstablishmentMethod::fixed) {
+        out.establishment_given = true;
+        m.establishment_pooled =
+            Eigen::Map<const Eigen::VectorXd>(model.establishment.values.data(), n_sites);
+        m.establishment_by_year.assign(years.size(), m.establishment_pooled);
+    } else {
+        std::vector<SeedsAndRecruits> data;
+        for (const auto& y : c.summary().per_year) {
+            const std::string label = std::to_string(y.year);
+            const auto it = std::find(years.begin(), years.end(), label);
+            if (it == years.end()) continue;
+            SeedsAndRecruits s;
+            s.year = label;
+            s.seeds_counted = static_cast<double>(y.seeds_counted);
+            if (y.flowering_without_count > 0) {
+                // Flowering plants without a count: the seed model of that year's kernel.
+                const stats::Table t = uncounted_flowering(c, y.year, layout);
+                const auto k = static_cast<std::size_t>(it - years.begin());
+                s.seeds_predicted = m.years[k].seeds.mean(t).sum();
+            }
+            for (std::size_t r : y.recruits_by_microsite) s.recruits.push_back(static_cast<double>(r));
+            data.push_back(std::move(s));
+        }
+        out.establishment = estimate_establishment(data, layout.microsites, m.arrival);
+        for (const auto& w : out.establishment.warnings) out.warnings.push_back(w);
+        m.establishment_pooled = out.establishment.pooled;
+        for (const auto& y : years) m.establishment_by_year.push_back(out.establishment.for_year(y));
+    }
+
+    m.survival_changes = model.perturbation.survival_changes;
+    for (const auto& s : model.scenarios)
+        m.scenarios.push_back(detail::scenario_settings(s, model.microsites));
+    m.assumptions = detail::pipeline_assumptions(model);
+    m.warnings = out.warnings;
+    return out;
+}
+
+std::vector<report::TidyTable> fit_tables(const FitResult& result) {
+    auto num = [](double x) { return std::isnan(x) ? report::missing() : report::number(x); };
+    report::TidyTable coef{"coefficients",
+                           {"rate", "model", "year_handling", "source", "term", "estimate",
+                            "std_error", "statistic", "p_value"},
+                           {}};
+    for (const auto& r : result.coefficients)
+        coef.rows.push_back({report::text(r.rate), report::text(r.model),
+                             report::text(r.year_handling), report::text(r.source),
+                             report::text(r.term), num(r.estimate), num(r.std_error),
+                             num(r.statistic), num(r.p_value)});
+    report::TidyTable cmp{"model_comparison",
+                          {"rate", "model", "formula", "aic", "delta_aic", "weight", "chosen",
+                           "parameters", "log_likelihood"},
+                          {}};
+    for (const auto& r : result.comparison)
+        cmp.rows.push_back({report::text(r.rate), report::text(r.model), report::text(r.formula),
+                            num(r.aic), num(r.delta_aic), num(r.weight),
+                            report::integer(r.chosen ? 1 : 0), report::integer(r.parameters),
+                            num(r.log_likelihood)});
+    std::vector<report::TidyTable> out{coef, cmp};
+    if (!result.establishment_given) {
+        out.push_back(establishment_table(result.establishment));
+    } else {
+        // Given values: one pooled row per microsite, source "given".
+        report::TidyTable est = establishment_table(EstablishmentEstimate{});
+        const auto& layout = result.model.layout;
+        for (std::size_t m = 0; m < layout.microsites.size(); ++m) {
+            const auto mi = static_cast<Eigen::Index>(m);
+            const double a = mi < result.model.arrival.size() ? result.model.arrival[mi] : NAN;
+            est.rows.push_back({report::text("pooled"), report::text(layout.microsites[m]),
+                                report::missing(), num(a), report::missing(),
+                                num(result.model.establishment_pooled[mi]),
+                                report::text("given")});
+        }
+        out.push_back(est);
+    }
+    return out;
+}
+
+}  // namespace safesite::pipeline
