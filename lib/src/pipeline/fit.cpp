@@ -61,23 +61,27 @@ Eigen::VectorXd given_arrival(const spec::ModelSpec& model) {
 
 }  // namespace
 
+FitResult fit_given(const spec::ModelSpec& model) {
+    FitResult out;
+    out.model = prepare_fixed(model);
+    for (const auto& name : spec::rate_names()) {
+        const auto& rate = model.rate(name);
+        out.rates.push_back({name, rate.family, rate.link, rate.formula,
+                             spec::to_string(rate.year), true, 0});
+        const auto rows = detail::given_rows(rate);
+        out.coefficients.insert(out.coefficients.end(), rows.begin(), rows.end());
+    }
+    out.establishment_given = true;
+    return out;
+}
+
 FitResult fit(const spec::ModelSpec& model) {
     if (!model.data.census) {
         if (!model.all_rates_fixed())
             throw SpecError({model.file.string(), 0, 0, "data.census"},
                             "fitting needs a census ([data] census), or fixed coefficients for "
                             "every rate");
-        FitResult out;
-        out.model = prepare_fixed(model);
-        for (const auto& name : spec::rate_names()) {
-            const auto& rate = model.rate(name);
-            out.rates.push_back({name, rate.family, rate.link, rate.formula,
-                                 spec::to_string(rate.year), true, 0});
-            const auto rows = detail::given_rows(rate);
-            out.coefficients.insert(out.coefficients.end(), rows.begin(), rows.end());
-        }
-        out.establishment_given = true;
-        return out;
+        return fit_given(model);
     }
     const census::Census c = census::load_census(*model.data.census, spec::to_census_options(model));
     return fit(model, c);

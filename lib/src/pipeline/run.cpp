@@ -1,6 +1,5 @@
 #include "safesite/pipeline/run.hpp"
 
-#include "safesite/pipeline/fixed_model.hpp"
 #include "safesite/pipeline/tables.hpp"
 
 namespace safesite::pipeline {
@@ -14,8 +13,7 @@ RunResult run(const spec::ModelSpec& model) {
 
 RunResult evaluate_fixed(const spec::ModelSpec& model) {
     RunResult out;
-    out.fit.model = prepare_fixed(model);
-    out.fit.establishment_given = true;
+    out.fit = fit_given(model);
     out.analysis = analyse(out.fit.model);
     return out;
 }
