@@ -9,7 +9,6 @@
 #include <cmath>
 #include <set>
 
-#include "safesite/pipeline/check.hpp"
 #include "safesite/pipeline/fit.hpp"
 #include "safesite/pipeline/run.hpp"
 #include "safesite/pipeline/tables.hpp"
@@ -22,16 +21,6 @@ spec::ModelSpec fixture() {
     return spec::read_model_spec(std::string(SAFESITE_TEST_DATA) + "/pipeline_fit.toml");
 }
 }  // namespace
-
-TEST_CASE("check summarises the census fixture without errors", "[pipeline][unit]") {
-    const auto result = pipeline::check(fixture());
-    CHECK(result.valid());
-    CHECK(result.summary.years == std::vector<int>{2001, 2002, 2003, 2004});
-    const auto tables = pipeline::check_tables(result);
-    REQUIRE(tables.size() == 4);
-    CHECK(tables[0].name == "census_years");
-    CHECK(tables[0].rows.size() == 4);
-}
 
 TEST_CASE("fit estimates establishment per year and pooled from the census counts",
           "[pipeline][unit]") {
