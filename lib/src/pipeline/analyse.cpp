@@ -5,6 +5,7 @@
 #include <memory>
 
 #include "pipeline/detail/analysis_bridge.hpp"
+#include "safesite/analysis/eigen_error.hpp"
 #include "safesite/arrival/arrival_chain.hpp"
 #include "safesite/error.hpp"
 #include "safesite/kernel/kernel_operator.hpp"
@@ -276,7 +277,17 @@ AnalysisResult analyse(const PreparedModel& model) {
             auto lambda_of_e = [&](double e_bare) {
                 RecruitmentParameters q = r;
                 q.establishment[bare] = e_bare;
-                return lambda_of(mesh, pooled_curves, q, eviction);
+                try {
+                    return lambda_of(mesh, pooled_curves, q, eviction);
+                } catch (const analysis::EigenError& e) {
+                    // With e_bare = 0 and every seed moved there, nothing reproduces and the
+                    // microsites decouple: the spectral radius is shared by several blocks.
+                    // The root-finder needs only the spectral radius, which is well defined.
+                    if (e.reason() == analysis::EigenError::Reason::not_unique &&
+                        std::isfinite(e.lambda()))
+                        return e.lambda();
+                    throw;
+                }
             };
             BreakEvenResult b;
             b.form = form;

@@ -25,30 +25,16 @@ stats::Table rows_where_one(const stats::Table& t, const std::string& column) {
     return t.select_rows(rows);
 }
 
-// The covariates of the flowering plants alive in census year `year` whose seeds were not
-// counted: a table for the seed model of that year's kernel.
-stats::Table uncounted_flowering(const census::Census& c, int year, const KernelLayout& layout) {
-    std::vector<double> size, seedling;
-    std::vector<std::string> microsite, plot;
-    const auto& records = c.records();
-    for (std::size_t i = 0; i < records.size(); ++i) {
-        const auto& r = records[i];
-        if (r.year != year || r.status != census::Status::alive || !r.flowered || r.seeds)
-            continue;
-        size.push_back(r.size);
-        seedling.push_back(c.is_seedling_row(i) ? 1.0 : 0.0);
-        microsite.push_back(r.microsite);
-        plot.push_back(r.plot);
-    }
-    const std::size_t n = size.size();
-    stats::Table t;
-    t.add_numeric("size", std::move(size));
-    t.add_categorical("microsite", std::move(microsite), layout.microsites);
-    t.add_numeric("seedling", std::move(seedling));
-    t.add_categorical("year", std::vector<std::string>(n, std::to_string(year)),
-                      layout.year_levels);
-    t.add_categorical("plot", std::move(plot));
-    return t;
+// The flowering plants alive in census year `label` whose seeds were not counted (rows of the
+// census `plants` table): what the seed model of that year's kernel predicts for.
+stats::Table uncounted_flowering(const stats::Table& plants, const std::string& label) {
+    std::vector<std::size_t> rows;
+    const auto& year = plants.categorical("year").values;
+    const auto& flowered = plants.numeric("flowered");
+    const auto& seeds = plants.numeric("seeds");
+    for (std::size_t i = 0; i < plants.rows(); ++i)
+        if (year[i] == label && flowered[i] == 1.0 && std::isnan(seeds[i])) rows.push_back(i);
+    return plants.select_rows(rows);
 }
 
 Eigen::VectorXd given_arrival(const spec::ModelSpec& model) {
@@ -108,7 +94,9 @@ FitResult fit(const spec::ModelSpec& model, const census::Census& c) {
         if (name == "growth")
             data = rows_where_one(td.transitions, "survived");
         else if (name == "seeds")
-            data = rows_where_one(td.transitions, "flowered");
+            data = rows_where_one(td.plants, "flowered");
+        else if (name == "flowering")
+            data = td.plants;
         else if (name == "recruit_size")
             data = td.recruits;
         else
@@ -173,7 +161,7 @@ FitResult fit(const spec::ModelSpec& model, const census::Census& c) {
             s.seeds_counted = static_cast<double>(y.seeds_counted);
             if (y.flowering_without_count > 0) {
                 // Flowering plants without a count: the seed model of that year's kernel.
-                const stats::Table t = uncounted_flowering(c, y.year, layout);
+                const stats::Table t = uncounted_flowering(td.plants, label);
                 const auto k = static_cast<std::size_t>(it - years.begin());
                 s.seeds_predicted = m.years[k].seeds.mean(t).sum();
             }

@@ -7,6 +7,7 @@
 #include <functional>
 
 #include "safesite/arrival/arrival_chain.hpp"
+#include "safesite/error.hpp"
 #include "safesite/pipeline/analyse.hpp"
 
 using namespace safesite;
