@@ -68,6 +68,16 @@ void write_checked(const fs::path& path, const std::string& content) {
     }
 }
 
+void make_folder(const fs::path& dir) {
+    try {
+        io::ensure_directory(dir);
+    } catch (const InputError&) {
+        throw;
+    } catch (const Error& e) {
+        throw InputError({dir.string(), 0, 0, "out"}, e.what());
+    }
+}
+
 }  // namespace
 
 std::string to_csv(const TidyTable& table) {
@@ -120,17 +130,21 @@ std::string to_summary_json(const std::vector<TidyTable>& tables, const RunInfo&
     return j.dump(2) + "\n";
 }
 
+fs::path write_csv(const fs::path& dir, const TidyTable& table) {
+    const std::string text = to_csv(table);
+    make_folder(dir);
+    const fs::path p = dir / (table.name + ".csv");
+    write_checked(p, text);
+    return p;
+}
+
 std::vector<fs::path> write_output_folder(const fs::path& dir,
                                           const std::vector<TidyTable>& tables,
                                           const RunInfo& info) {
     check_tables(tables);
     // Render everything first: a bad table fails before any file is touched.
     const std::string json = to_summary_json(tables, info);
-    try {
-        io::ensure_directory(dir);
-    } catch (const Error& e) {
-        throw InputError({dir.string(), 0, 0, "out"}, e.what());
-    }
+    make_folder(dir);
     std::vector<fs::path> written;
     for (const auto& t : tables) {
         const fs::path p = dir / (t.name + ".csv");

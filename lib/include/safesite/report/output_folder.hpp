@@ -27,6 +27,11 @@ std::string to_csv(const TidyTable& table);
 /// \throws UsageError when a table fails check_table() or two tables share a name.
 std::string to_summary_json(const std::vector<TidyTable>& tables, const RunInfo& info);
 
+/// Write one table as `<dir>/<name>.csv` atomically (`dir` is created when absent); returns
+/// the path. \throws UsageError for an invalid table; InputError (key "out") when the folder
+/// cannot be created or the file cannot be written.
+std::filesystem::path write_csv(const std::filesystem::path& dir, const TidyTable& table);
+
 /// Write the output folder: creates `dir` (and parents) when absent, writes every table as
 /// `<dir>/<name>.csv`, then `<dir>/summary.json`. Existing files of the same names are
 /// replaced; other files in `dir` are left alone. Returns the paths written, in order.

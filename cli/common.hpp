@@ -1,0 +1,35 @@
+#pragma once
+/// \file common.hpp
+/// Helpers shared by the verbs: loading the model file, choosing tables to print, the run's
+/// metadata.
+
+#include <filesystem>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "safesite/report/run_info.hpp"
+#include "safesite/report/tidy_table.hpp"
+#include "safesite/spec/model_spec.hpp"
+
+namespace safesite::cli {
+
+/// Read and validate a model file (SpecError, exit 3, when it cannot be read or is invalid).
+spec::ModelSpec load_model(const std::string& path);
+
+/// Metadata of a run of `command` on `model` (the model file as the user named it), with the
+/// model's own assumptions, then `assumptions`, then `warnings`.
+report::RunInfo run_info(const std::string& command, const std::string& model_path,
+                         const spec::ModelSpec& model, std::optional<std::uint64_t> seed,
+                         const std::vector<std::string>& assumptions,
+                         const std::vector<std::string>& warnings);
+
+/// The tables among `tables` whose names are in `names` (in the order of `names`), skipping
+/// absent and empty ones.
+std::vector<report::TidyTable> pick_tables(const std::vector<report::TidyTable>& tables,
+                                           const std::vector<std::string>& names);
+
+/// The output folder: `--out` when given, else the model file's `[output] dir`.
+std::filesystem::path output_dir(const std::string& out_option, const spec::ModelSpec& model);
+
+}  // namespace safesite::cli
