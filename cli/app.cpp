@@ -18,7 +18,7 @@ namespace safesite::cli {
 namespace {
 
 constexpr const char* k_short_usage =
-    "Usage: safesite <verb> [options]   (verbs: check)\n"
+    "Usage: safesite <verb> [options]   (verbs: check, fit, run, simulate, eval)\n"
     "Run 'safesite --help' for the verbs, 'safesite <verb> --help' for their options.\n";
 
 constexpr const char* k_description =
@@ -48,7 +48,8 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream& e
                "2 bad usage, 3 bad input (data, model file, output folder), 4 numerical "
                "failure.");
 
-    std::vector<Verb> verbs = {add_check_verb(app)};
+    std::vector<Verb> verbs = {add_check_verb(app), add_fit_verb(app), add_run_verb(app),
+                               add_simulate_verb(app), add_eval_verb(app)};
 
     const Verb* chosen = nullptr;
     try {

@@ -12,3 +12,15 @@ cd "$(dirname "$0")/.."
 
 echo "== safesite check models/ridge.toml   (validate and summarise the demo census)"
 "$SAFESITE" check models/ridge.toml
+echo
+echo "== safesite fit models/ridge.toml     (vital-rate fits and model comparison)"
+"$SAFESITE" fit models/ridge.toml
+echo
+echo "== safesite run models/ridge.toml --out demo-out   (λ per census year, scenarios; files in demo-out/)"
+"$SAFESITE" run models/ridge.toml --out demo-out
+echo
+echo "== the truth the demo census was simulated from: λ of the true year kernels (demo/truth-lambda.csv)"
+cat demo/truth-lambda.csv
+echo
+echo "== safesite eval models/fixed-example.toml   (a model without data)"
+"$SAFESITE" eval models/fixed-example.toml

@@ -21,9 +21,9 @@ function(safesite_cli_case)
   set_tests_properties(cli:${C_NAME} PROPERTIES LABELS cli)
 endfunction()
 
-safesite_cli_case(NAME help ARGS "--help" STATUS 0 STDOUT "Usage:.*check")
+safesite_cli_case(NAME help ARGS "--help" STATUS 0 STDOUT "Usage:.*simulate")
 safesite_cli_case(NAME version ARGS "--version" STATUS 0 STDOUT "^safesite [0-9]+\\.[0-9]+\\.[0-9]+")
-foreach(verb check)
+foreach(verb check fit run eval simulate)
   safesite_cli_case(NAME ${verb}-help ARGS "${verb}|--help" STATUS 0 STDOUT "safesite ${verb}")
 endforeach()
 
@@ -31,12 +31,24 @@ endforeach()
 safesite_cli_case(NAME no-arguments-is-usage-error ARGS "" STATUS 2
                   STDERR "^safesite: error: [^\n]*\nUsage: safesite")
 safesite_cli_case(NAME unknown-verb ARGS "grow" STATUS 2 STDERR "^safesite: error: ")
-safesite_cli_case(NAME unknown-option ARGS "check|models/ridge.toml|--colour" STATUS 2
-                  STDERR "^safesite: error: [^\n]*--colour[^\n]*\nUsage: safesite check")
+safesite_cli_case(NAME unknown-option ARGS "run|models/ridge.toml|--colour" STATUS 2
+                  STDERR "^safesite: error: [^\n]*--colour[^\n]*\nUsage: safesite run")
+safesite_cli_case(NAME simulate-needs-plants
+                  ARGS "simulate|models/ridge-truth.toml|--years|3|--seed|1|--out|x" STATUS 2
+                  STDERR "^safesite: error: [^\n]*--plants")
 
 # Bad input: status 3 naming the file.
 safesite_cli_case(NAME missing-model-file ARGS "check|models/no-such-model.toml" STATUS 3
                   STDERR "^safesite: error: [^\n]*no-such-model.toml")
+safesite_cli_case(NAME eval-needs-fixed-rates ARGS "eval|models/ridge.toml" STATUS 3
+                  STDERR "^safesite: error: [^\n]*ridge.toml")
+
 # The demo: check, fit, run (writes the output folder), eval.
 safesite_cli_case(NAME demo-check ARGS "check|models/ridge.toml" STATUS 0
                   STDOUT "census_years.*2015.*Caution")
+safesite_cli_case(NAME demo-run
+                  ARGS "run|models/ridge.toml|--out|${CMAKE_CURRENT_BINARY_DIR}/demo-out" STATUS 0
+                  STDOUT "lambda.*2015.*pooled"
+                  FILES "${CMAKE_CURRENT_BINARY_DIR}/demo-out/lambda.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/summary.json|${CMAKE_CURRENT_BINARY_DIR}/demo-out/coefficients.csv")
+safesite_cli_case(NAME eval-fixed-example ARGS "eval|models/fixed-example.toml" STATUS 0
+                  STDOUT "pooled +[0-9.]+")

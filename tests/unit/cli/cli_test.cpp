@@ -49,7 +49,7 @@ fs::path fresh_dir(const std::string& tag) {
     return p;
 }
 
-const std::vector<std::string> k_verbs = {"check"};
+const std::vector<std::string> k_verbs = {"check", "fit", "run", "eval", "simulate"};
 
 }  // namespace
 
@@ -74,8 +74,11 @@ TEST_CASE("misuse is status 2 with one error line and a short usage on stderr", 
     const std::vector<std::vector<std::string>> cases = {
         {},                                         // no verb
         {"frobnicate"},                             // unknown verb
-        {"check"},                                  // missing MODEL
-        {"check", "m.toml", "--bogus"},             // unknown option
+        {"run"},                                    // missing MODEL
+        {"run", "m.toml", "--bogus"},               // unknown option
+        {"simulate", "t.toml", "--plants", "10"},   // missing required options
+        {"simulate", "t.toml", "--plants", "0", "--years", "3", "--seed", "1", "--out", "x"},
+        {"eval", "m.toml", "--top", "zero"},        // not a number
     };
     for (const auto& args : cases) {
         std::string joined;
@@ -100,7 +103,7 @@ TEST_CASE("a bad model file is status 3 naming the file", "[cli][unit]") {
     fs::create_directories(dir);
     const fs::path model = dir / "model.toml";
     std::ofstream(model) << "[model]\nname = \"x\"\nsize_transfrom = \"log\"\n";
-    const Outcome bad = run({"check", model.string()});
+    const Outcome bad = run({"eval", model.string()});
     CHECK(bad.status == 3);
     CHECK(bad.err.find(model.string() + ":3") != std::string::npos);
     CHECK(std::count(bad.err.begin(), bad.err.end(), '\n') == 1);  // one line
@@ -125,9 +128,30 @@ TEST_CASE("every option in the help of every verb is documented in docs/cli.md",
             CHECK(docs.find("## `safesite " + args[0]) != std::string::npos);
         }
     }
-    CHECK(seen.count("--help") == 1);  // the pattern finds options at all
+    CHECK(seen.count("--plants") == 1);  // the pattern finds options at all
     for (const auto& o : seen) {
         INFO(o);
         CHECK(docs.find("`" + o) != std::string::npos);
     }
+}
+
+TEST_CASE("simulate writes the same files for the same seed", "[cli][unit]") {
+    const fs::path a = fresh_dir("sim-a"), b = fresh_dir("sim-b"), c = fresh_dir("sim-c");
+    const std::string truth = source("models/ridge-truth.toml");
+    auto sim = [&](const fs::path& out, const std::string& seed) {
+        return run({"simulate", truth, "--plants", "150", "--years", "4", "--seed", seed,
+                    "--out", out.string(), "--burn-in", "3"});
+    };
+    const Outcome ra = sim(a, "11");
+    INFO(ra.err);
+    REQUIRE(ra.status == 0);
+    REQUIRE(sim(b, "11").status == 0);
+    REQUIRE(sim(c, "12").status == 0);
+    for (const char* f : {"census.csv", "truth-years.csv", "truth-lambda.csv"}) {
+        INFO(f);
+        REQUIRE(fs::exists(a / f));
+        CHECK(slurp(a / f) == slurp(b / f));
+    }
+    CHECK(slurp(a / "census.csv") != slurp(c / "census.csv"));
+    for (const auto& d : {a, b, c}) fs::remove_all(d);
 }

@@ -1,0 +1,69 @@
+// `safesite run MODEL [--out DIR] [--seed S]`: everything, written to the output folder.
+#include <memory>
+#include <optional>
+#include <ostream>
+
+#include <CLI/CLI.hpp>
+
+#include "common.hpp"
+#include "safesite/pipeline/run.hpp"
+#include "safesite/report/output_folder.hpp"
+#include "safesite/report/text_summary.hpp"
+#include "verbs.hpp"
+
+namespace safesite::cli {
+
+namespace {
+
+struct RunOptions {
+    std::string model;
+    std::string out;
+    std::optional<std::uint64_t> seed;
+};
+
+int run_run(const RunOptions& o, const Streams& io) {
+    spec::ModelSpec model = load_model(o.model);
+    if (o.seed) model.uncertainty.seed = *o.seed;
+    progress(io, "fitting the vital rates and building the kernels");
+    const pipeline::RunResult result = pipeline::run(model);
+    const auto tables = pipeline::run_tables(result);
+    std::vector<std::string> warnings = result.fit.warnings;
+    warnings.insert(warnings.end(), result.analysis.warnings.begin(),
+                    result.analysis.warnings.end());
+    for (const auto& w : warnings) io.err << "safesite: warning: " << w << "\n";
+    // The seed is recorded only when the run draws random numbers (bootstrap replicates).
+    std::optional<std::uint64_t> seed;
+    if (model.uncertainty.replicates > 0) seed = model.uncertainty.seed;
+    const auto info =
+        run_info("run", o.model, model, seed, result.analysis.assumptions, warnings);
+    const std::filesystem::path dir = output_dir(o.out, model);
+    progress(io, "writing " + dir.string());
+    const auto written = report::write_output_folder(dir, tables, info);
+    report::TextOptions text;
+    text.max_rows = 40;
+    io.out << report::render_summary(pick_tables(tables, {"lambda", "arrival", "scenarios"}),
+                                     info, text);
+    io.out << "wrote " << written.size() << " files to " << dir.string() << "\n";
+    return 0;
+}
+
+}  // namespace
+
+Verb add_run_verb(CLI::App& app) {
+    auto o = std::make_shared<RunOptions>();
+    CLI::App* cmd = app.add_subcommand(
+        "run", "Fit, build the kernels and run every analysis of a model file (λ per census "
+               "year and pooled, perturbations, arrival, scenarios, sensitivities); write the "
+               "output folder and print a short summary.");
+    cmd->add_option("MODEL", o->model, "model file (TOML, docs/formats.md)")->required();
+    cmd->add_option("--out", o->out,
+                    "output folder (default: [output] dir of the model file, relative to it)")
+        ->type_name("DIR");
+    cmd->add_option("--seed", o->seed,
+                    "random seed of the bootstrap (overrides [uncertainty] seed)")
+        ->type_name("S");
+    return {cmd, "safesite run MODEL [--out DIR] [--seed S]",
+            [o](const Streams& io) { return run_run(*o, io); }};
+}
+
+}  // namespace safesite::cli

@@ -1,0 +1,124 @@
+// `safesite simulate TRUTH --plants N --years Y --seed S --out DIR`: invent a census from a
+// truth model file (docs/methods/simulation.md).
+#include <memory>
+#include <ostream>
+
+#include <CLI/CLI.hpp>
+#include <fmt/format.h>
+
+#include "common.hpp"
+#include "safesite/pipeline/analyse.hpp"
+#include "safesite/pipeline/fixed_model.hpp"
+#include "safesite/report/output_folder.hpp"
+#include "safesite/report/text_summary.hpp"
+#include "safesite/sim/census_simulation.hpp"
+#include "verbs.hpp"
+
+namespace safesite::cli {
+
+namespace {
+
+struct SimulateOptions {
+    std::string truth;
+    std::string out;
+    sim::SimulationOptions sim;
+    bool no_coordinates = false;
+};
+
+/// λ of every true year kernel (and of the pooled kernel without deviations), when the truth
+/// file gives mesh bounds.
+report::TidyTable true_lambda(const spec::ModelSpec& model, const sim::CensusSimulation& s) {
+    pipeline::FixedModelOptions fo;
+    // Transitions t → t+1 exist for every census year but the last.
+    fo.years.assign(s.years.begin(), s.years.end() - 1);
+    fo.shifts = s.deviations;
+    pipeline::PreparedModel prepared = pipeline::prepare_fixed(model, fo);
+    prepared.break_even = false;
+    prepared.mesh_check = false;
+    prepared.scenarios.clear();
+    prepared.survival_changes.clear();
+    const pipeline::AnalysisResult a = pipeline::analyse(prepared);
+    report::TidyTable t{"truth-lambda", {"year", "lambda"}, {}};
+    for (const auto& k : a.kernels) {
+        t.rows.push_back({report::text(k.label), report::number(k.lambda)});
+    }
+    return t;
+}
+
+int run_simulate(SimulateOptions o, const Streams& io) {
+    const spec::ModelSpec model = load_model(o.truth);
+    o.sim.coordinates = !o.no_coordinates;
+    progress(io, fmt::format("simulating {} plants over {} census years", o.sim.plants,
+                             o.sim.years));
+    const sim::CensusSimulation s = sim::simulate_census(model, o.sim);
+    std::vector<report::TidyTable> written_tables = {s.census, s.truth_years};
+    report::TidyTable counts{"counts", {"year", "alive", "recruits", "untagged_recruits"}, {}};
+    for (std::size_t k = 0; k < s.years.size(); ++k) {
+        counts.rows.push_back({report::text(s.years[k]),
+                               report::integer(static_cast<std::int64_t>(s.alive[k])),
+                               report::integer(static_cast<std::int64_t>(s.recruits[k])),
+                               report::integer(static_cast<std::int64_t>(s.untagged[k]))});
+    }
+    std::vector<report::TidyTable> shown = {counts};
+    if (model.mesh.lower && model.mesh.upper) {
+        progress(io, "computing λ of the true year kernels");
+        written_tables.push_back(true_lambda(model, s));
+        shown.push_back(written_tables.back());
+    }
+    for (const auto& t : written_tables) report::write_csv(o.out, t);
+    const auto info = run_info("simulate", o.truth, model, o.sim.seed, {}, {});
+    io.out << report::render_summary(shown, info);
+    io.out << "wrote " << s.census.rows.size() << " census rows and the truth to " << o.out
+           << "\n";
+    return 0;
+}
+
+}  // namespace
+
+Verb add_simulate_verb(CLI::App& app) {
+    auto o = std::make_shared<SimulateOptions>();
+    CLI::App* cmd = app.add_subcommand(
+        "simulate", "Invent a census from a truth model file whose vital rates are all given "
+                    "(with year_sd for year-to-year variation): writes census.csv, "
+                    "truth-years.csv (the drawn year deviations) and, when the truth file "
+                    "gives mesh bounds, truth-lambda.csv. Same seed, same files.");
+    cmd->add_option("TRUTH", o->truth, "truth model file (TOML) with coefficients for every rate")
+        ->required();
+    cmd->add_option("--plants", o->sim.plants, "tagged plants at the first census")
+        ->type_name("N")
+        ->required()
+        ->check(CLI::Range(1, 1000000));
+    cmd->add_option("--years", o->sim.years, "census years (at least 2)")
+        ->type_name("Y")
+        ->required()
+        ->check(CLI::Range(2, 200));
+    cmd->add_option("--seed", o->sim.seed, "random seed")->type_name("S")->required();
+    cmd->add_option("--out", o->out, "folder to write the files to (created when absent)")
+        ->type_name("DIR")
+        ->required();
+    cmd->add_option("--first-year", o->sim.first_year, "label of the first census year (2015)")
+        ->type_name("YEAR");
+    cmd->add_option("--plots", o->sim.plots, "number of plots (8)")
+        ->type_name("K")
+        ->check(CLI::Range(1, 10000));
+    cmd->add_option("--burn-in", o->sim.burn_in,
+                    "untagged years simulated before the first census (15)")
+        ->type_name("B")
+        ->check(CLI::Range(0, 1000));
+    cmd->add_option("--notfound-rate", o->sim.notfound_rate,
+                    "probability that an alive plant is not found in a census (0.02)")
+        ->type_name("P")
+        ->check(CLI::Range(0.0, 0.99));
+    cmd->add_option("--missing-seed-rate", o->sim.missing_seed_rate,
+                    "probability that a flowering plant's seeds are not counted (0.05)")
+        ->type_name("P")
+        ->check(CLI::Range(0.0, 1.0));
+    cmd->add_option("--max-new-per-plot", o->sim.max_new_per_plot,
+                    "most recruits newly tagged per plot and year; 0 = no cap (0)")
+        ->type_name("K");
+    cmd->add_flag("--no-coordinates", o->no_coordinates, "leave out the x, y columns");
+    return {cmd, "safesite simulate TRUTH --plants N --years Y --seed S --out DIR [options]",
+            [o](const Streams& io) { return run_simulate(*o, io); }};
+}
+
+}  // namespace safesite::cli
