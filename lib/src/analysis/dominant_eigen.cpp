@@ -8,6 +8,8 @@
 #include <cmath>
 #include <complex>
 #include <cstdio>
+#include <functional>
+#include <vector>
 #include <limits>
 #include <string>
 
@@ -164,20 +166,112 @@ private:
 };
 
 // Run GenEigsSolver for `nev` eigenvalues of largest modulus from the all-ones start vector.
+// Returns false (instead of throwing) when it does not converge, so that the caller can fall
+// back to the unrestarted iteration below.
 template <class Op>
-void arnoldi(Op& view, Eigen::Index nev, Eigen::Index ncv, const EigenOptions& options,
-             Eigen::VectorXcd& values, Eigen::VectorXd& lead_vector, std::size_t& iterations) {
+bool spectra_leading(Op& view, Eigen::Index nev, Eigen::Index ncv, const EigenOptions& options,
+                     Eigen::VectorXcd& values, Eigen::VectorXcd& lead_vector,
+                     std::size_t& iterations) {
     const Eigen::VectorXd start = Eigen::VectorXd::Ones(view.rows());  // deterministic
-    Spectra::GenEigsSolver<Op> solver(view, nev, ncv);
-    solver.init(start.data());
-    solver.compute(Spectra::SortRule::LargestMagn, options.max_restarts, options.tolerance);
-    iterations += static_cast<std::size_t>(solver.num_iterations());
-    if (solver.info() != Spectra::CompInfo::Successful)
-        throw EigenError(EigenError::Reason::not_converged, nan, nan,
-                         "the Arnoldi iteration did not converge in " +
-                             std::to_string(options.max_restarts) + " restarts");
-    values = solver.eigenvalues();
-    lead_vector = solver.eigenvectors(1).col(0).real();
+    try {
+        Spectra::GenEigsSolver<Op> solver(view, nev, ncv);
+        solver.init(start.data());
+        solver.compute(Spectra::SortRule::LargestMagn, options.max_restarts, options.tolerance);
+        iterations += static_cast<std::size_t>(solver.num_iterations());
+        if (solver.info() != Spectra::CompInfo::Successful) return false;
+        values = solver.eigenvalues();
+        lead_vector = solver.eigenvectors(1).col(0);
+        return values.size() > 0;
+    } catch (const std::exception&) {
+        return false;  // Spectra's own failures (e.g. a factorisation it cannot continue)
+    }
+}
+
+using Apply = std::function<void(const double*, double*)>;
+
+// Relative residual ‖A x − μ x‖ / (|μ| ‖x‖) of a (possibly complex) Ritz pair.
+double ritz_residual(const Apply& apply, std::complex<double> mu, const Eigen::VectorXcd& x) {
+    const Eigen::Index N = x.size();
+    const Eigen::VectorXd re = x.real(), im = x.imag();
+    Eigen::VectorXd are(N), aim(N);
+    apply(re.data(), are.data());
+    apply(im.data(), aim.data());
+    Eigen::VectorXcd ax(N);
+    ax.real() = are;
+    ax.imag() = aim;
+    const double scale = std::abs(mu) * x.norm();
+    return scale > 0.0 ? (ax - mu * x).norm() / scale : std::numeric_limits<double>::infinity();
+}
+
+// Fallback: unrestarted Arnoldi with full (twice-repeated) Gram–Schmidt from the all-ones
+// vector, stopping at a relative breakdown (an invariant subspace: its Ritz values are exact
+// eigenvalues) or when the dominant Ritz pair's residual estimate |h_{m+1,m} y_m| is below the
+// tolerance. Used only when Spectra's answer fails the residual check: Spectra 1.0.1 detects
+// breakdown with an absolute threshold (eps·√n) and can return spurious Ritz values for
+// kernels of low numerical rank (e.g. separable growth), which this handles exactly.
+// Saad (2011) Numerical Methods for Large Eigenvalue Problems, 2nd ed., §6.3 (from memory).
+void fallback_arnoldi(const Apply& apply, Eigen::Index N, const EigenOptions& options,
+                      Eigen::VectorXcd& values, Eigen::VectorXcd& lead_vector,
+                      std::size_t& iterations) {
+    const Eigen::Index max_dim = std::min<Eigen::Index>(N, 400);
+    Eigen::MatrixXd V(N, max_dim + 1);
+    Eigen::MatrixXd H = Eigen::MatrixXd::Zero(max_dim + 1, max_dim);
+    V.col(0) = Eigen::VectorXd::Ones(N) / std::sqrt(static_cast<double>(N));
+    Eigen::VectorXd w(N);
+    for (Eigen::Index k = 0; k < max_dim; ++k) {
+        apply(V.col(k).data(), w.data());
+        const double wnorm = w.norm();
+        for (int pass = 0; pass < 2; ++pass) {
+            const Eigen::VectorXd h = V.leftCols(k + 1).transpose() * w;
+            w.noalias() -= V.leftCols(k + 1) * h;
+            H.col(k).head(k + 1) += h;
+        }
+        const double beta = w.norm();
+        H(k + 1, k) = beta;
+        const Eigen::Index m = k + 1;
+        const bool breakdown = !(beta > 1e-12 * wnorm) || wnorm == 0.0;
+        if (breakdown || m % 8 == 0 || m == max_dim) {
+            Eigen::EigenSolver<Eigen::MatrixXd> es(H.topLeftCorner(m, m), true);
+            const Eigen::VectorXcd ritz = es.eigenvalues();
+            std::vector<Eigen::Index> order(static_cast<std::size_t>(m));
+            for (Eigen::Index i = 0; i < m; ++i) order[static_cast<std::size_t>(i)] = i;
+            std::sort(order.begin(), order.end(), [&](Eigen::Index a, Eigen::Index b) {
+                return std::abs(ritz[a]) > std::abs(ritz[b]);
+            });
+            const Eigen::VectorXcd y = es.eigenvectors().col(order[0]);
+            const double estimate = beta * std::abs(y[m - 1]) / y.norm();
+            if (breakdown || estimate <= options.tolerance * std::abs(ritz[order[0]])) {
+                values.resize(std::min<Eigen::Index>(m, 2));
+                for (Eigen::Index i = 0; i < values.size(); ++i)
+                    values[i] = ritz[order[static_cast<std::size_t>(i)]];
+                lead_vector = V.leftCols(m).cast<std::complex<double>>() * y;
+                iterations += 1;
+                return;
+            }
+        }
+        if (breakdown) break;
+        V.col(k + 1) = w / beta;
+    }
+    throw EigenError(EigenError::Reason::not_converged, nan, nan,
+                     "the Arnoldi iteration did not converge (Krylov dimension " +
+                         std::to_string(max_dim) + ")");
+}
+
+// The leading eigenvalues (values[0] dominant, values[1] next when available) and the lead
+// eigenvector of an operator: Spectra first, checked by its residual, the fallback otherwise.
+template <class Op>
+void leading(Op& view, const Apply& apply, Eigen::Index nev, Eigen::Index ncv,
+             const EigenOptions& options, Eigen::VectorXcd& values, Eigen::VectorXd& vector,
+             std::size_t& iterations) {
+    Eigen::VectorXcd vec;
+    const bool ok = spectra_leading(view, nev, ncv, options, values, vec, iterations) &&
+                    ritz_residual(apply, values[0], vec) <= 1e-8;
+    if (!ok) fallback_arnoldi(apply, view.rows(), options, values, vec, iterations);
+    // Real eigenvector of a real eigenvalue: rotate out the arbitrary complex phase.
+    Eigen::Index big = 0;
+    vec.cwiseAbs().maxCoeff(&big);
+    const std::complex<double> phase = vec[big] / std::abs(vec[big]);
+    vector = (vec / phase).real();
 }
 
 EigenTriple krylov_route(const KernelOperator& op, const EigenOptions& options) {
@@ -198,38 +292,38 @@ EigenTriple krylov_route(const KernelOperator& op, const EigenOptions& options) 
     t.method = EigenMethod::krylov;
     const std::size_t before = op.applications();
     Eigen::VectorXd right_vec, left_vec;
-    try {
+    {
         // Right: nev = 2 so that |λ₂| is known and uniqueness can be checked.
         ForwardView forward(op);
+        const Apply apply = [&op](const double* x, double* y) { op.perform_op(x, y); };
         Eigen::VectorXcd values;
-        arnoldi(forward, 2, ncv, options, values, right_vec, t.iterations);
+        leading(forward, apply, 2, ncv, options, values, right_vec, t.iterations);
         const double second = values.size() > 1 ? std::abs(values[1]) : 0.0;
         check_dominant(values[0], second, scale, options);
         t.lambda = values[0].real();
         t.second_modulus = second;
-
+    }
+    {
         // Left: the same eigenvalue of Aᵀ (simple and dominant by the check above).
         TransposedKernelOperator transposed(op);
+        const Apply apply = [&op](const double* x, double* y) {
+            op.perform_transposed_op(x, y);
+        };
         Eigen::VectorXcd lvalues;
-        arnoldi(transposed, 1, ncv, options, lvalues, left_vec, t.iterations);
+        leading(transposed, apply, 1, ncv, options, lvalues, left_vec, t.iterations);
         if (std::abs(lvalues[0] - t.lambda) > 1e-8 * t.lambda)
             throw EigenError(EigenError::Reason::not_converged, t.lambda, t.second_modulus,
                              "the left iteration found " + number(std::abs(lvalues[0])) +
-                                 " instead of λ = " + number(t.lambda));
-    } catch (const EigenError&) {
-        throw;
-    } catch (const std::exception& e) {
-        throw EigenError(EigenError::Reason::not_converged, nan, nan,
-                         std::string("the Arnoldi iteration failed: ") + e.what());
+                                 " instead of lambda = " + number(t.lambda));
     }
     t.applications = op.applications() - before;
     finish(t, op, right_vec, left_vec);
-    // Arnoldi converges each Ritz pair to `tolerance`; a residual far above that means the
-    // pair is not trustworthy (common practice: accept 1e-8 relative to λ).
+    // Each Ritz pair was checked above; a residual far above the tolerance here means the
+    // normalised Perron vectors are not trustworthy (common practice: 1e-8 relative to λ).
     if (!(t.residual <= 1e-8 * t.lambda) || !(t.left_residual <= 1e-8 * t.lambda))
         throw EigenError(EigenError::Reason::not_converged, t.lambda, t.second_modulus,
-                         "the eigenvector residual " + number(std::max(t.residual, t.left_residual)) +
-                             " is too large");
+                         "the eigenvector residual " +
+                             number(std::max(t.residual, t.left_residual)) + " is too large");
     return t;
 }
 

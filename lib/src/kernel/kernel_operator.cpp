@@ -44,6 +44,24 @@ double KernelOperator::recruitment_input(const double* x) const {
     return m_fresh * seeds + m_stage_recruitment.dot(xs);
 }
 
+Eigen::VectorXd KernelOperator::offspring_per_seed() const {
+    const auto n = static_cast<Eigen::Index>(m_n);
+    Eigen::VectorXd u = Eigen::VectorXd::Zero(m_dim);
+    for (std::size_t m = 0; m < microsite_count(); ++m)
+        u.segment(static_cast<Eigen::Index>(m_entry[m]) * n, n) +=
+            (m_fresh * m_arrival[m] * m_establishment[m]) * m_recruit_shape[m];
+    u.tail(static_cast<Eigen::Index>(stage_count())) = m_seed_input;
+    return u;
+}
+
+Eigen::VectorXd KernelOperator::seeds_per_individual() const {
+    const auto n = static_cast<Eigen::Index>(m_n);
+    Eigen::VectorXd s = Eigen::VectorXd::Zero(m_dim);
+    for (std::size_t k = 0; k < class_count(); ++k)
+        s.segment(static_cast<Eigen::Index>(k) * n, n) = m_seeds[k];
+    return s;
+}
+
 void KernelOperator::perform_op(const double* x, double* y) const {
     ++m_applications;
     apply_impl(KernelPart::all, x, y);

@@ -105,6 +105,14 @@ public:
     /// \f$R(x) = \varphi \sum_k \sum_j w_j p_k(z_j) b_k(z_j) x_k(z_j) + \sum_d r_d x_d\f$.
     double recruitment_input(const double* x) const;
 
+    // --- reproduction as a rank-one product, F = u sᵀ (life-history analysis) -------------
+    /// u: offspring at t+1 per seed produced at t — \f$\varphi a_m e_m c_m(z_i)\f$ in the entry
+    /// class of each microsite, σ_d in stage d.
+    Eigen::VectorXd offspring_per_seed() const;
+    /// s: seeds produced per unit of state — \f$p_k(z_j) b_k(z_j) w_j\f$ for class entries,
+    /// 0 for stages.
+    Eigen::VectorXd seeds_per_individual() const;
+
 private:
     KernelOperator() = default;
     void apply_impl(KernelPart part, const double* x, double* y) const;
