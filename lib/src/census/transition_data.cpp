@@ -104,33 +104,6 @@ TransitionData build_transitions(const Census& census) {
         t.add_categorical("plant", std::move(plant));
         t.add_numeric("seedling", std::move(seedling));
     }
-    {
-        std::vector<double> size, flowered, seeds, seedling;
-        std::vector<std::string> microsite, year, plot, plant;
-        std::set<int> years;
-        for (std::size_t i = 0; i < records.size(); ++i) {
-            const CensusRecord& r = records[i];
-            if (r.status != Status::alive) continue;
-            size.push_back(r.size);
-            flowered.push_back(r.flowered ? 1.0 : 0.0);
-            seeds.push_back(r.seeds ? static_cast<double>(*r.seeds) : nan);
-            seedling.push_back(census.is_seedling_row(i) ? 1.0 : 0.0);
-            microsite.push_back(r.microsite);
-            year.push_back(std::to_string(r.year));
-            years.insert(r.year);
-            plot.push_back(r.plot);
-            plant.push_back(r.plant);
-        }
-        stats::Table& t = out.plants;
-        t.add_numeric("size", std::move(size));
-        t.add_numeric("flowered", std::move(flowered));
-        t.add_numeric("seeds", std::move(seeds));
-        t.add_categorical("microsite", std::move(microsite), labels);
-        t.add_categorical("year", std::move(year), year_levels(years));
-        t.add_categorical("plot", std::move(plot));
-        t.add_categorical("plant", std::move(plant));
-        t.add_numeric("seedling", std::move(seedling));
-    }
     return out;
 }
 
