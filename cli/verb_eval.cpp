@@ -48,7 +48,19 @@ int run_eval(const EvalOptions& o, const Streams& io) {
                              report::number(p.value), report::number(p.sensitivity),
                              report::number(p.elasticity)});
     }
-    io.out << report::render_summary({growth, elas}, info);
+    // The largest kernel-level elasticities of the pooled λ, summed over blocks.
+    auto blocks = a.pooled().block_elasticities;
+    std::stable_sort(blocks.begin(), blocks.end(), [](const auto& x, const auto& y) {
+        return std::abs(x.elasticity) > std::abs(y.elasticity);
+    });
+    if (blocks.size() > o.top) blocks.resize(o.top);
+    report::TidyTable kernel_elas{"top_kernel_elasticities", {"to", "from", "part", "elasticity"},
+                                  {}};
+    for (const auto& b : blocks) {
+        kernel_elas.rows.push_back({report::text(b.to), report::text(b.from),
+                                    report::text(b.part), report::number(b.elasticity)});
+    }
+    io.out << report::render_summary({growth, kernel_elas, elas}, info);
     if (!o.out.empty()) {
         const auto written =
             report::write_output_folder(o.out, pipeline::run_tables(result), info);

@@ -6,6 +6,7 @@
 
 #include "pipeline/detail/analysis_bridge.hpp"
 #include "safesite/analysis/eigen_error.hpp"
+#include "safesite/analysis/kernel_sensitivity.hpp"
 #include "safesite/arrival/arrival_chain.hpp"
 #include "safesite/error.hpp"
 #include "safesite/kernel/kernel_operator.hpp"
@@ -163,6 +164,23 @@ AnalysisResult analyse(const PreparedModel& model) {
             k.max_evicted_growth.push_back(op.evicted_growth(c).maxCoeff());
         for (std::size_t m = 0; m < op.microsite_count(); ++m)
             k.evicted_recruits.push_back(op.evicted_recruits(m));
+        {
+            // Elasticity block sums E = K ∘ s / λ, per part (docs/methods/kernel.md).
+            const analysis::KernelSensitivity ks(op, triple);
+            const std::pair<kernel::KernelPart, const char*> parts[] = {
+                {kernel::KernelPart::survival_growth, "survival_growth"},
+                {kernel::KernelPart::reproduction, "reproduction"}};
+            for (const auto& [part, name] : parts) {
+                const Eigen::MatrixXd sums = ks.elasticity_block_sums(part);
+                for (Eigen::Index to = 0; to < sums.rows(); ++to)
+                    for (Eigen::Index from = 0; from < sums.cols(); ++from)
+                        if (sums(to, from) != 0.0)
+                            k.block_elasticities.push_back(
+                                {op.group_name(static_cast<std::size_t>(to)),
+                                 op.group_name(static_cast<std::size_t>(from)), name,
+                                 sums(to, from)});
+            }
+        }
 
         if (juveniles) {
             // Directional derivatives ⟨v, ∂A w⟩/⟨v, w⟩ (docs/methods/pipeline.md).

@@ -47,6 +47,18 @@ struct KernelResult {
     Eigen::VectorXd arrival;          ///< a used
     Eigen::VectorXd establishment;    ///< e used
 
+    /// Kernel-level elasticities (Caswell 2001; Easterling et al. 2000) summed over each block:
+    /// one entry per (to group, from group, part) with a non-zero share of λ; groups are the
+    /// continuous classes then the discrete stages; part is "survival_growth" or
+    /// "reproduction". The shares sum to 1 over all entries.
+    struct BlockElasticity {
+        std::string to;
+        std::string from;
+        std::string part;
+        double elasticity = 0.0;
+    };
+    std::vector<BlockElasticity> block_elasticities;
+
     std::vector<PerturbationPoint> perturbation;  ///< juvenile survival changes
     double juvenile_sensitivity = nan;  ///< dλ/dε for s_J → s_J + ε
     double juvenile_elasticity = nan;   ///< (1/λ) dλ/dδ for s_J → (1 + δ) s_J
