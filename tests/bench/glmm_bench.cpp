@@ -25,7 +25,13 @@ int main() {
     year.name = "year";
     plant.name = "plant";
     for (int t = 0; t < years; ++t) year.level_names.push_back(std::to_string(2010 + t));
-    for (int p = 0; p < plants; ++p) plant.level_names.push_back("p" + std::to_string(p));
+    for (int p = 0; p < plants; ++p) {
+        // Two appends, not `"p" + std::string`: g++ 12 gives a false -Wrestrict there
+        // (GCC bug 105329).
+        std::string label = "p";
+        label += std::to_string(p);
+        plant.level_names.push_back(label);
+    }
     for (int i = 0; i < n; ++i) {
         const int t = i / plants, p = i % plants;
         year.level.push_back(t);
