@@ -25,7 +25,8 @@ void write_file_atomic(const std::filesystem::path& path, std::string_view conte
     const std::filesystem::path dir = path.has_parent_path() ? path.parent_path() : ".";
     std::string name = ".";  // appended piecewise: see the -Wrestrict note in error.hpp
     name += path.filename().string();
-    name += ".tmp-XXXXXX";
+    name += ".tmp-";
+    name.append(6, 'X');  // mkstemp(3) replaces the last six characters with a unique suffix
     std::string pattern = (dir / name).string();
     const int fd = ::mkstemp(pattern.data());
     if (fd < 0) fail(path, "create a temporary file for", errno);

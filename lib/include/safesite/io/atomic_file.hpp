@@ -9,7 +9,7 @@
 namespace safesite::io {
 
 /// Write `content` to `path` atomically: the bytes go to a new temporary file in the same
-/// directory (`.<name>.tmp-XXXXXX`), which is flushed to disk and then renamed over `path`
+/// directory (`.<name>.tmp-` plus a unique six-character suffix from mkstemp(3)), which is flushed to disk and then renamed over `path`
 /// (rename(2) within one file system is atomic on POSIX). On any failure the temporary file is
 /// removed and `path` is left as it was.
 /// Throws safesite::Error naming the path and the system's reason when the directory does not
