@@ -99,8 +99,8 @@ TEST_CASE("analyse: size-independent kernel without juvenile class has lambda = 
     CHECK(r.kernels[0].label == "2001");
     CHECK(r.kernels[0].lambda == Approx(0.5 + 30.0 * (0.7 * 0.01 + 0.3 * 0.04)).epsilon(1e-9));
     CHECK(r.pooled().lambda == Approx(0.6 + 20.0 * (0.7 * 0.02 + 0.3 * 0.05)).epsilon(1e-9));
-    // Kernel-level elasticities: they sum to 1 (Caswell 2001, section 9.2), and with
-    // size-independent rates the survival–growth share is ⟨v, P w⟩/λ = s/λ.
+    // Kernel-level elasticities sum to 1 (Caswell 2001, chapter 9; chapter from memory), and
+    // with size-independent rates the survival–growth share is ⟨v, P w⟩/λ = s/λ (algebra).
     double total = 0.0, survival_growth = 0.0;
     for (const auto& b : r.pooled().block_elasticities) {
         total += b.elasticity;
