@@ -29,7 +29,8 @@ int run_fit(const FitOptions& o, const Streams& io) {
     report::TextOptions text;
     text.max_rows = 60;
     io.out << report::render_summary(
-        pick_tables(tables, {"coefficients", "model_comparison", "establishment"}), info, text);
+        pick_tables(tables, {"coefficients", "model_comparison", "establishment", "hazards",
+                             "trapping", "arrival_chain"}), info, text);
     if (!o.out.empty()) {
         const auto written = report::write_output_folder(o.out, tables, info);
         io.out << "wrote " << written.size() << " files to " << o.out << "\n";

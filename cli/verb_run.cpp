@@ -41,8 +41,8 @@ int run_run(const RunOptions& o, const Streams& io) {
     const auto written = report::write_output_folder(dir, tables, info);
     report::TextOptions text;
     text.max_rows = 40;
-    io.out << report::render_summary(pick_tables(tables, {"lambda", "arrival", "scenarios"}),
-                                     info, text);
+    io.out << report::render_summary(
+        pick_tables(tables, {"arrival_chain", "lambda", "arrival", "scenarios"}), info, text);
     io.out << "wrote " << written.size() << " files to " << dir.string() << "\n";
     return 0;
 }

@@ -26,13 +26,14 @@ struct SeedState {
 }  // namespace
 
 RetentionData retention_from_csv(const io::CsvTable& csv,
-                                 const std::vector<std::string>& microsites) {
-    const std::size_t c_seed = csv.require("seed");
-    const std::size_t c_station = csv.require("station");
-    const std::size_t c_micro = csv.require("microsite");
-    const std::size_t c_type = csv.require("seed_type");
-    const std::size_t c_day = csv.require("day");
-    const std::size_t c_present = csv.require("present");
+                                 const std::vector<std::string>& microsites,
+                                 const io::ColumnMap& columns) {
+    const std::size_t c_seed = csv.require("seed", columns);
+    const std::size_t c_station = csv.require("station", columns);
+    const std::size_t c_micro = csv.require("microsite", columns);
+    const std::size_t c_type = csv.require("seed_type", columns);
+    const std::size_t c_day = csv.require("day", columns);
+    const std::size_t c_present = csv.require("present", columns);
     const std::set<std::string> known(microsites.begin(), microsites.end());
 
     RetentionData data;
@@ -115,8 +116,9 @@ RetentionData parse_retention(std::string_view text, const std::vector<std::stri
 }
 
 RetentionData read_retention(const std::filesystem::path& path,
-                             const std::vector<std::string>& microsites) {
-    return retention_from_csv(io::CsvTable::read(path), microsites);
+                             const std::vector<std::string>& microsites,
+                             const io::ColumnMap& columns) {
+    return retention_from_csv(io::CsvTable::read(path), microsites, columns);
 }
 
 std::vector<RetentionInterval> retention_intervals(const std::vector<RetentionCheck>& checks) {

@@ -11,13 +11,14 @@
 
 namespace safesite::arrival {
 
-TrappingData trapping_from_csv(const io::CsvTable& csv, const std::vector<std::string>& forms) {
-    const std::size_t c_neighbour = csv.require("neighbour");
-    const std::size_t c_form = csv.require("form");
-    const std::size_t c_size = csv.require("neighbour_size");
-    const std::size_t c_type = csv.require("seed_type");
-    const std::size_t c_launched = csv.require("launched");
-    const std::size_t c_trapped = csv.require("trapped");
+TrappingData trapping_from_csv(const io::CsvTable& csv, const std::vector<std::string>& forms,
+                               const io::ColumnMap& columns) {
+    const std::size_t c_neighbour = csv.require("neighbour", columns);
+    const std::size_t c_form = csv.require("form", columns);
+    const std::size_t c_size = csv.require("neighbour_size", columns);
+    const std::size_t c_type = csv.require("seed_type", columns);
+    const std::size_t c_launched = csv.require("launched", columns);
+    const std::size_t c_trapped = csv.require("trapped", columns);
     const std::set<std::string> known(forms.begin(), forms.end());
 
     TrappingData data;
@@ -72,8 +73,8 @@ TrappingData parse_trapping(std::string_view text, const std::vector<std::string
 }
 
 TrappingData read_trapping(const std::filesystem::path& path,
-                           const std::vector<std::string>& forms) {
-    return trapping_from_csv(io::CsvTable::read(path), forms);
+                           const std::vector<std::string>& forms, const io::ColumnMap& columns) {
+    return trapping_from_csv(io::CsvTable::read(path), forms, columns);
 }
 
 stats::Table trapping_table(const std::vector<TrappingTrial>& trials,

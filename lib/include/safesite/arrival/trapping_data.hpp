@@ -6,6 +6,7 @@
 #include <cstddef>
 #include <cstdint>
 #include <filesystem>
+#include <map>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -14,6 +15,7 @@
 
 namespace safesite::io {
 class CsvTable;
+using ColumnMap = std::map<std::string, std::string>;
 }
 
 namespace safesite::arrival {
@@ -40,8 +42,10 @@ struct TrappingData {
 /// forms (the non-bare microsites). Throws DataError with file, line, column and column name
 /// for: a missing column, an empty or malformed cell, neighbour_size ≤ 0, launched ≤ 0,
 /// trapped < 0 or > launched, an unknown form, the same neighbour given two forms, or the same
-/// neighbour × seed type twice.
-TrappingData trapping_from_csv(const io::CsvTable& csv, const std::vector<std::string>& forms);
+/// neighbour × seed type twice. `columns` maps our column names to the file's
+/// (`[data.trapping_columns]`); unmapped names are looked up as they are.
+TrappingData trapping_from_csv(const io::CsvTable& csv, const std::vector<std::string>& forms,
+                               const io::ColumnMap& columns = {});
 
 /// Parse CSV text (see trapping_from_csv). `file` names the source in errors.
 TrappingData parse_trapping(std::string_view text, const std::vector<std::string>& forms,
@@ -49,7 +53,8 @@ TrappingData parse_trapping(std::string_view text, const std::vector<std::string
 
 /// Read a trapping CSV file (see trapping_from_csv). DataError when it cannot be read.
 TrappingData read_trapping(const std::filesystem::path& path,
-                           const std::vector<std::string>& forms);
+                           const std::vector<std::string>& forms,
+                           const io::ColumnMap& columns = {});
 
 /// The trials as a regression table with columns neighbour (factor), form (factor; levels are
 /// the forms present, in the order of `forms`), neighbour_size (numeric, raw scale),

@@ -5,9 +5,11 @@
 
 #include <cstddef>
 #include <limits>
+#include <optional>
 #include <string>
 #include <vector>
 
+#include "safesite/pipeline/arrival_fit.hpp"
 #include "safesite/pipeline/establishment.hpp"
 #include "safesite/pipeline/prepared_model.hpp"
 
@@ -60,6 +62,9 @@ struct FitResult {
     /// Establishment estimated from the census (empty `rows` when given in the model file).
     EstablishmentEstimate establishment;
     bool establishment_given = false;
+    /// The fitted seed experiments and their arrival chain (`[arrival] method =
+    /// "experiments"`); empty when the arrival fractions are given.
+    std::optional<ArrivalFit> arrival;
     /// The model ready for `analyse`: bound rates of every kernel, a, e, settings.
     PreparedModel model;
     std::vector<std::string> warnings;

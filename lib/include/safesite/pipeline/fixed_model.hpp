@@ -32,6 +32,10 @@ struct FixedModelOptions {
     /// Mesh bounds to use instead of `[mesh] lower/upper` (e.g. those of a fit to simulated
     /// data, so that true and fitted kernels share a mesh).
     std::optional<std::pair<double, double>> mesh_bounds;
+    /// The arrival chain of a model with `[arrival] method = "experiments"`: the baseline
+    /// arrival fractions are the chain's (a simulation's true chain, or the chain fitted by
+    /// fit_arrival). Ignored when the arrival fractions are given directly.
+    std::optional<arrival::ChainParameters> chain;
 };
 
 /// The bound rates of one kernel of a fixed model: each rate's g⁻¹(Xβ + shift) with β from
@@ -47,12 +51,13 @@ KernelRates fixed_kernel_rates(const spec::ModelSpec& model, const std::string& 
                                const std::vector<std::string>& year_levels);
 
 /// A PreparedModel from a fixed model: the year kernels of `options.years` (with their
-/// shifts) and the pooled kernel (no shifts); arrival fractions as given; establishment as
-/// given (`[establishment] method = "fixed"`).
+/// shifts) and the pooled kernel (no shifts); arrival fractions as given, or those of
+/// `options.chain` for `method = "experiments"`; establishment as given (`[establishment]
+/// method = "fixed"`).
 ///
-/// \throws SpecError when a rate is not fixed, when the arrival fractions or the
-///         establishment values are not given, or when the mesh bounds are neither given
-///         in the file nor in `options` (key `mesh.lower`).
+/// \throws SpecError when a rate is not fixed, when the arrival fractions (or, for
+///         experiments, `options.chain`) or the establishment values are not given, or when
+///         the mesh bounds are neither given in the file nor in `options` (key `mesh.lower`).
 PreparedModel prepare_fixed(const spec::ModelSpec& model, const FixedModelOptions& options = {});
 
 }  // namespace safesite::pipeline
