@@ -27,11 +27,12 @@ FitResult fit(const spec::ModelSpec& model);
 /// \throws UsageError when the census has validation errors.
 FitResult fit(const spec::ModelSpec& model, const census::Census& census);
 
-/// A model whose rates are all given, without reading any data (prepare_fixed with the
+/// A model whose rates are all given, without reading the census (prepare_fixed with the
 /// given coefficients as `coefficients` rows). Errors as for prepare_fixed().
 FitResult fit_given(const spec::ModelSpec& model);
 
-/// The fit as tables: `coefficients`, `model_comparison`, `establishment` (when estimated).
+/// The fit as tables: `coefficients`, `model_comparison`, `establishment`, and with the seed
+/// experiments `trapping`, `hazards`, `retention_curve`, `arrival_chain` (arrival_fit.hpp).
 std::vector<report::TidyTable> fit_tables(const FitResult& result);
 
 }  // namespace safesite::pipeline
