@@ -4,9 +4,11 @@
 #include <cmath>
 #include <memory>
 
-#include "pipeline/detail/analysis_bridge.hpp"
 #include "safesite/analysis/eigen_error.hpp"
+#include "safesite/analysis/eigen_triple.hpp"
 #include "safesite/analysis/kernel_sensitivity.hpp"
+#include "safesite/analysis/lambda_derivative.hpp"
+#include "safesite/analysis/life_history.hpp"
 #include "safesite/arrival/arrival_chain.hpp"
 #include "safesite/error.hpp"
 #include "safesite/kernel/kernel_operator.hpp"
@@ -49,7 +51,15 @@ double lambda_of(const kernel::Mesh& mesh, const CurvesPtr& curves,
                  SurvivalChange change = {}) {
     const kernel::KernelOperator op(mesh,
                                     describe_kernel(curves, recruitment, eviction, change));
-    return detail::eigen(op).lambda;
+    return analysis::dominant_eigen(op).lambda;
+}
+
+// dλ/dθ = ⟨v, (∂A/∂θ) w⟩ with ∂A/∂θ given as an operator on the same mesh.
+double directional_derivative(const analysis::EigenTriple& triple,
+                              const kernel::KernelOperator& derivative) {
+    return analysis::lambda_derivative(triple, [&derivative](const double* x, double* y) {
+        derivative.apply(kernel::KernelPart::all, x, y);
+    });
 }
 
 // Arrival fractions under a scenario. With a fitted chain the arrival module applies the
@@ -145,14 +155,14 @@ AnalysisResult analyse(const PreparedModel& model) {
         const RecruitmentParameters recruitment = baseline_recruitment(model, i);
         const kernel::KernelOperator op(mesh,
                                         describe_kernel(curves[i], recruitment, eviction));
-        const analysis::EigenTriple triple = detail::eigen(op);
+        const analysis::EigenTriple triple = analysis::dominant_eigen(op);
 
         KernelResult k;
         k.label = rates[i]->label;
         k.lambda = triple.lambda;
-        const detail::LifeHistory life = detail::life_history(op, triple);
-        k.r0 = life.r0;
-        k.generation_time = life.generation_time;
+        const analysis::LifeHistory life = analysis::life_history(op, triple.lambda);
+        k.r0 = life.net_reproductive_rate;
+        k.generation_time = life.generation_time.value_or(KernelResult::nan);
         k.points = mesh.size();
         k.nodes = mesh.points();
         k.weights = mesh.weights();
@@ -191,8 +201,8 @@ AnalysisResult analyse(const PreparedModel& model) {
                 mesh, juvenile_survival_derivative(curves[i], eviction,
                                                    JuvenileDerivative::additive));
             k.juvenile_elasticity =
-                detail::directional_derivative(op, triple, d_prop) / triple.lambda;
-            k.juvenile_sensitivity = detail::directional_derivative(op, triple, d_add);
+                directional_derivative(triple, d_prop) / triple.lambda;
+            k.juvenile_sensitivity = directional_derivative(triple, d_add);
             for (double change : model.survival_changes) {
                 const double lambda =
                     change == 0.0 ? triple.lambda
@@ -245,9 +255,10 @@ AnalysisResult analyse(const PreparedModel& model) {
     {
         const RecruitmentParameters r = baseline_recruitment(model, pooled_index);
         const kernel::KernelOperator op(mesh, describe_kernel(pooled_curves, r, eviction));
-        const analysis::EigenTriple triple = detail::eigen(op);
-        const Eigen::VectorXd d_a = detail::d_lambda_d_arrival(op, triple);
-        const Eigen::VectorXd d_e = detail::d_lambda_d_establishment(op, triple);
+        const analysis::EigenTriple triple = analysis::dominant_eigen(op);
+        const analysis::RecruitmentSensitivity rs = analysis::recruitment_sensitivity(op, triple);
+        const Eigen::VectorXd& d_a = rs.arrival;
+        const Eigen::VectorXd& d_e = rs.establishment;
         const auto& sites = model.layout.microsites;
         auto push = [&](const std::string& parameter, const std::string& target, double value,
                         double sensitivity) {

@@ -82,6 +82,12 @@ std::vector<std::string> pipeline_assumptions(const spec::ModelSpec& model) {
             "Closed population for seeds: every recruit seen at t+1 comes from a seed produced "
             "in the stand at t (no seed immigration, no seed bank); establishment = recruits / "
             "(seeds produced × arrival fraction).");
+    if (model.arrival.method == spec::ArrivalMethod::experiments)
+        out.push_back(
+            "Seed arrival from the experiments (focal seed type \"" + model.arrival.seed_type +
+            "\"): daily departure hazards are constant over the exposure period and taken at a "
+            "typical station; trapping is averaged over neighbour sizes; the arrival fractions "
+            "enter the kernels at their point estimates.");
     if (model.arrival.method == spec::ArrivalMethod::experiments && model.arrival.cover_from_census)
         out.push_back(
             "Ground cover of each neighbour form is taken as the share of census plant records "
