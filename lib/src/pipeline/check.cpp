@@ -1,6 +1,10 @@
 #include "safesite/pipeline/check.hpp"
 
+#include <algorithm>
 #include <cstdint>
+#include <map>
+#include <set>
+#include <utility>
 #include <numeric>
 
 #include "safesite/error.hpp"
@@ -19,6 +23,16 @@ CheckResult check(const spec::ModelSpec& model) {
     out.microsites = model.microsites.labels;
     out.report = c.report();
     out.summary = c.summary();
+    if (model.arrival.method == spec::ArrivalMethod::experiments && model.data.trapping &&
+        model.data.retention) {
+        std::vector<std::string> forms;
+        for (std::size_t m = 0; m < model.microsites.labels.size(); ++m)
+            if (m != model.microsites.bare_index) forms.push_back(model.microsites.labels[m]);
+        out.trapping =
+            arrival::read_trapping(*model.data.trapping, forms, model.data.trapping_columns);
+        out.retention = arrival::read_retention(*model.data.retention, model.microsites.labels,
+                                                model.data.retention_columns);
+    }
     return out;
 }
 
@@ -72,7 +86,54 @@ std::vector<report::TidyTable> check_tables(const CheckResult& result) {
                  ex.column > 0 ? count(ex.column) : report::missing(), text(ex.key),
                  text(ex.text)});
     }
-    return {years, sites, gaps, problems};
+    std::vector<report::TidyTable> out{years, sites, gaps, problems};
+    if (result.trapping) {
+        struct Counts {
+            std::set<std::string> neighbours;
+            std::int64_t trials = 0, launched = 0, trapped = 0;
+        };
+        std::map<std::pair<std::string, std::string>, Counts> by;
+        for (const auto& t : result.trapping->trials) {
+            Counts& c = by[{t.form, t.seed_type}];
+            c.neighbours.insert(t.neighbour);
+            c.trials += 1;
+            c.launched += t.launched;
+            c.trapped += t.trapped;
+        }
+        report::TidyTable t{"trapping_summary",
+                            {"form", "seed_type", "neighbours", "trials", "launched", "trapped"},
+                            {}};
+        for (const auto& [key, c] : by)
+            t.rows.push_back({text(key.first), text(key.second), count(c.neighbours.size()),
+                              integer(c.trials), integer(c.launched), integer(c.trapped)});
+        out.push_back(std::move(t));
+    }
+    if (result.retention) {
+        struct Counts {
+            std::set<std::string> stations, seeds, left;
+            std::int64_t checks = 0;
+            double last_day = 0.0;
+        };
+        std::map<std::pair<std::string, std::string>, Counts> by;
+        for (const auto& c : result.retention->checks) {
+            Counts& k = by[{c.microsite, c.seed_type}];
+            k.stations.insert(c.station);
+            k.seeds.insert(c.seed);
+            if (!c.present) k.left.insert(c.seed);
+            k.checks += 1;
+            k.last_day = std::max(k.last_day, c.day);
+        }
+        report::TidyTable t{"retention_summary",
+                            {"microsite", "seed_type", "stations", "seeds", "checks",
+                             "seeds_left", "last_day"},
+                            {}};
+        for (const auto& [key, k] : by)
+            t.rows.push_back({text(key.first), text(key.second), count(k.stations.size()),
+                              count(k.seeds.size()), integer(k.checks), count(k.left.size()),
+                              report::number(k.last_day)});
+        out.push_back(std::move(t));
+    }
+    return out;
 }
 
 }  // namespace safesite::pipeline

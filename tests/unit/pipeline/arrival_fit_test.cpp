@@ -20,6 +20,7 @@
 #include "safesite/arrival/experiment_simulation.hpp"
 #include "safesite/arrival/trapping_model.hpp"
 #include "safesite/error.hpp"
+#include "safesite/pipeline/check.hpp"
 #include "safesite/pipeline/fit.hpp"
 #include "safesite/pipeline/run.hpp"
 #include "safesite/pipeline/tables.hpp"
@@ -307,5 +308,29 @@ TEST_CASE("fit: experiment errors name the key or the file", "[pipeline][unit]")
         }
         REQUIRE(alive > 0);
         CHECK(r.arrival->chain.cover[1] == Approx(cushion / alive).epsilon(1e-12));
+    }
+}
+
+TEST_CASE("check: the seed experiments are read and summarised", "[pipeline][unit]") {
+    const Experiments e = write_experiments();
+    const pipeline::CheckResult r = pipeline::check(experiments_model(e));
+    REQUIRE(r.trapping.has_value());
+    REQUIRE(r.retention.has_value());
+    const auto tables = pipeline::check_tables(r);
+    const auto& trap = table(tables, "trapping_summary");
+    // 60 cushion neighbours, one trial per seed type, 20 seeds launched each (the design).
+    REQUIRE(trap.rows.size() == 2);
+    for (const auto& row : trap.rows) {
+        CHECK(std::get<std::int64_t>(row[2]) == 60);
+        CHECK(std::get<std::int64_t>(row[3]) == 60);
+        CHECK(std::get<std::int64_t>(row[4]) == 1200);
+    }
+    const auto& ret = table(tables, "retention_summary");
+    // 25 stations × 20 seeds of each type per microsite.
+    REQUIRE(ret.rows.size() == 4);
+    for (const auto& row : ret.rows) {
+        CHECK(std::get<std::int64_t>(row[2]) == 25);
+        CHECK(std::get<std::int64_t>(row[3]) == 500);
+        CHECK(std::get<std::int64_t>(row[5]) <= 500);
     }
 }

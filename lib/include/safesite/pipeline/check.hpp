@@ -1,11 +1,15 @@
 #pragma once
 /// \file check.hpp
-/// `safesite check`: read and validate the census of a model file and summarise it, without
-/// fitting anything (issue 4 §1, §5).
+/// `safesite check`: read and validate the census of a model file (and, with `[arrival] method
+/// = "experiments"`, the trapping trials and retention checks) and summarise them, without
+/// fitting anything (issue 4 §1, §5; issue 5 §1–2).
 
+#include <optional>
 #include <string>
 #include <vector>
 
+#include "safesite/arrival/retention_data.hpp"
+#include "safesite/arrival/trapping_data.hpp"
 #include "safesite/census/census.hpp"
 #include "safesite/census/validation_report.hpp"
 #include "safesite/report/tidy_table.hpp"
@@ -19,6 +23,10 @@ struct CheckResult {
     std::vector<std::string> microsites;     ///< model labels, in order
     census::ValidationReport report;         ///< all problems (errors and warnings)
     census::CensusSummary summary;           ///< plants, years, transitions, recruits, gaps
+    /// The seed experiments as read (method = experiments only; a bad file throws DataError
+    /// at its first problem, with file, line and column).
+    std::optional<arrival::TrappingData> trapping;
+    std::optional<arrival::RetentionData> retention;
     /// True when the census has no error (warnings allowed): fit and run may proceed.
     bool valid() const { return !report.has_errors(); }
 };
@@ -26,12 +34,16 @@ struct CheckResult {
 /// Read and validate the census of `model` and summarise it. Problems in the data are
 /// collected in `report` (never thrown), so that all are shown at once.
 /// \throws SpecError (key data.census) when the model file names no census; DataError when
-///         the file cannot be read as CSV or lacks a required column.
+///         the file cannot be read as CSV or lacks a required column, and for the first
+///         problem of an experiment file.
 CheckResult check(const spec::ModelSpec& model);
 
 /// The check as tables: `census_years` (one row per census year), `census_microsites` (per
 /// transition year and microsite: plants alive at t and recruits at t+1), `census_gaps`,
-/// `problems` (one row per example of each problem).
+/// `problems` (one row per example of each problem); with the experiments also
+/// `trapping_summary` (per form × seed type: neighbours, trials, seeds launched and trapped)
+/// and `retention_summary` (per microsite × seed type: stations, seeds, checks, seeds seen to
+/// leave, last check day).
 std::vector<report::TidyTable> check_tables(const CheckResult& result);
 
 }  // namespace safesite::pipeline
