@@ -1,4 +1,5 @@
-// `safesite run MODEL [--out DIR] [--seed S]`: everything, written to the output folder.
+// `safesite run MODEL [--out DIR] [--seed S] [--replicates B] [--threads T]`: everything,
+// written to the output folder; bootstrap intervals when replicates > 0.
 #include <memory>
 #include <optional>
 #include <ostream>
@@ -6,6 +7,7 @@
 #include <CLI/CLI.hpp>
 
 #include "common.hpp"
+#include "safesite/pipeline/bootstrap.hpp"
 #include "safesite/pipeline/run.hpp"
 #include "safesite/report/output_folder.hpp"
 #include "safesite/report/text_summary.hpp"
@@ -19,19 +21,35 @@ struct RunOptions {
     std::string model;
     std::string out;
     std::optional<std::uint64_t> seed;
+    std::optional<std::size_t> replicates;
+    unsigned threads = 0;
 };
 
 int run_run(const RunOptions& o, const Streams& io) {
     spec::ModelSpec model = load_model(o.model);
     if (o.seed) model.uncertainty.seed = *o.seed;
+    if (o.replicates) model.uncertainty.replicates = *o.replicates;
     progress(io, "fitting the vital rates and building the kernels");
     const pipeline::RunResult result = pipeline::run(model);
-    const auto tables = pipeline::run_tables(result);
+    auto tables = pipeline::run_tables(result);
     std::vector<std::string> warnings = result.fit.warnings;
     warnings.insert(warnings.end(), result.analysis.warnings.begin(),
                     result.analysis.warnings.end());
+    if (model.uncertainty.replicates > 0) {
+        progress(io, "bootstrap: " + std::to_string(model.uncertainty.replicates) +
+                         " replicates (refit and reanalyse each)");
+        pipeline::BootstrapOptions b;
+        b.replicates = model.uncertainty.replicates;
+        b.seed = model.uncertainty.seed;
+        b.level = model.uncertainty.level;
+        b.threads = o.threads;
+        const pipeline::BootstrapResult boot = pipeline::bootstrap(model, result, b);
+        for (auto& t : pipeline::bootstrap_tables(boot)) tables.push_back(std::move(t));
+        warnings.insert(warnings.end(), boot.warnings.begin(), boot.warnings.end());
+    }
     for (const auto& w : warnings) io.err << "safesite: warning: " << w << "\n";
     // The seed is recorded only when the run draws random numbers (bootstrap replicates).
+    // The thread count is not recorded: it does not change any result.
     std::optional<std::uint64_t> seed;
     if (model.uncertainty.replicates > 0) seed = model.uncertainty.seed;
     const auto info =
@@ -42,7 +60,8 @@ int run_run(const RunOptions& o, const Streams& io) {
     report::TextOptions text;
     text.max_rows = 40;
     io.out << report::render_summary(
-        pick_tables(tables, {"arrival_chain", "lambda", "arrival", "scenarios"}), info, text);
+        pick_tables(tables, {"arrival_chain", "lambda", "arrival", "scenarios", "intervals"}),
+        info, text);
     io.out << "wrote " << written.size() << " files to " << dir.string() << "\n";
     return 0;
 }
@@ -62,7 +81,16 @@ Verb add_run_verb(CLI::App& app) {
     cmd->add_option("--seed", o->seed,
                     "random seed of the bootstrap (overrides [uncertainty] seed)")
         ->type_name("S");
-    return {cmd, "safesite run MODEL [--out DIR] [--seed S]",
+    cmd->add_option("--replicates", o->replicates,
+                    "bootstrap replicates for confidence intervals (overrides [uncertainty] "
+                    "replicates; 0: none)")
+        ->type_name("B");
+    cmd->add_option("--threads", o->threads,
+                    "worker threads of the bootstrap (default: all hardware threads; results "
+                    "do not depend on it)")
+        ->type_name("T")
+        ->check(CLI::Range(1u, 1024u));
+    return {cmd, "safesite run MODEL [--out DIR] [--seed S] [--replicates B] [--threads T]",
             [o](const Streams& io) { return run_run(*o, io); }};
 }
 

@@ -332,4 +332,34 @@ std::optional<bool> CsvTable::optional_flag(std::size_t row, std::size_t col) co
     return flag(row, col);
 }
 
+CsvTable CsvTable::select_rows(const std::vector<std::size_t>& rows) const {
+    CsvTable out;
+    out.m_file = m_file;
+    out.m_header = m_header;
+    out.m_header_line = m_header_line;
+    const std::size_t n = columns();
+    out.m_cells.reserve(rows.size() * n);
+    out.m_cell_line.reserve(rows.size() * n);
+    out.m_row_line.reserve(rows.size());
+    for (std::size_t r : rows) {
+        if (r >= this->rows())
+            throw UsageError("CSV row " + std::to_string(r) + " out of range (" +
+                             std::to_string(this->rows()) + " rows)");
+        const auto first = static_cast<std::ptrdiff_t>(r * n);
+        out.m_cells.insert(out.m_cells.end(), m_cells.begin() + first,
+                           m_cells.begin() + first + static_cast<std::ptrdiff_t>(n));
+        out.m_cell_line.insert(out.m_cell_line.end(), m_cell_line.begin() + first,
+                               m_cell_line.begin() + first + static_cast<std::ptrdiff_t>(n));
+        out.m_row_line.push_back(m_row_line[r]);
+    }
+    return out;
+}
+
+void CsvTable::set_cell(std::size_t row, std::size_t col, std::string text) {
+    if (row >= rows() || col >= columns())
+        throw UsageError("CSV cell (" + std::to_string(row) + ", " + std::to_string(col) +
+                         ") out of range");
+    m_cells[row * columns() + col] = std::move(text);
+}
+
 }  // namespace safesite::io

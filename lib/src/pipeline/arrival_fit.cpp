@@ -175,7 +175,7 @@ ArrivalFit fit_arrival(const spec::ModelSpec& model, const arrival::TrappingData
     return out;
 }
 
-ArrivalFit fit_arrival(const spec::ModelSpec& model, const ArrivalCensusInputs& census) {
+ExperimentData read_experiments(const spec::ModelSpec& model) {
     if (!model.data.trapping || !model.data.retention)
         throw SpecError({model.file.string(), model.arrival.at.line, 0, "data.trapping"},
                         "arrival.method = \"experiments\" needs data.trapping and "
@@ -183,11 +183,14 @@ ArrivalFit fit_arrival(const spec::ModelSpec& model, const ArrivalCensusInputs& 
     std::vector<std::string> forms;
     for (std::size_t m = 0; m < model.microsites.labels.size(); ++m)
         if (m != model.microsites.bare_index) forms.push_back(model.microsites.labels[m]);
-    const arrival::TrappingData trapping =
-        arrival::read_trapping(*model.data.trapping, forms, model.data.trapping_columns);
-    const arrival::RetentionData retention = arrival::read_retention(
-        *model.data.retention, model.microsites.labels, model.data.retention_columns);
-    return fit_arrival(model, trapping, retention, census);
+    return {arrival::read_trapping(*model.data.trapping, forms, model.data.trapping_columns),
+            arrival::read_retention(*model.data.retention, model.microsites.labels,
+                                    model.data.retention_columns)};
+}
+
+ArrivalFit fit_arrival(const spec::ModelSpec& model, const ArrivalCensusInputs& census) {
+    const ExperimentData data = read_experiments(model);
+    return fit_arrival(model, data.trapping, data.retention, census);
 }
 
 std::vector<report::TidyTable> arrival_fit_tables(const ArrivalFit& fit) {

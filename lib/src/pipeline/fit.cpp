@@ -119,7 +119,8 @@ FitResult fit(const spec::ModelSpec& model) {
     return fit(model, c);
 }
 
-FitResult fit(const spec::ModelSpec& model, const census::Census& c) {
+FitResult fit(const spec::ModelSpec& model, const census::Census& c,
+              const ExperimentData* experiments) {
     FitResult out;
     for (const auto& issue : c.report().issues())
         if (issue.severity == census::Severity::warning)
@@ -187,7 +188,9 @@ FitResult fit(const spec::ModelSpec& model, const census::Census& c) {
         if (model.arrival.cover_from_census)
             inputs.cover = census_cover(td.transitions, layout.microsites, m.bare);
         inputs.neighbour_sizes = census_neighbour_sizes(c);
-        out.arrival = fit_arrival(model, inputs);
+        out.arrival = experiments ? fit_arrival(model, experiments->trapping,
+                                                experiments->retention, inputs)
+                                  : fit_arrival(model, inputs);
         add_arrival_rows(*out.arrival, out);
         for (const auto& w : out.arrival->warnings) out.warnings.push_back(w);
         m.arrival = out.arrival->result.fractions;

@@ -20,6 +20,7 @@
 #include "safesite/arrival/experiment_simulation.hpp"
 #include "safesite/arrival/trapping_model.hpp"
 #include "safesite/error.hpp"
+#include "safesite/pipeline/bootstrap.hpp"
 #include "safesite/pipeline/check.hpp"
 #include "safesite/pipeline/fit.hpp"
 #include "safesite/pipeline/run.hpp"
@@ -333,4 +334,33 @@ TEST_CASE("check: the seed experiments are read and summarised", "[pipeline][uni
         CHECK(std::get<std::int64_t>(row[3]) == 500);
         CHECK(std::get<std::int64_t>(row[5]) <= 500);
     }
+}
+
+TEST_CASE("bootstrap with the seed experiments: chain quantities get intervals",
+          "[pipeline][unit]") {
+    const Experiments e = write_experiments();
+    const spec::ModelSpec model = experiments_model(e);
+    const pipeline::RunResult base = pipeline::run(model);
+    pipeline::BootstrapOptions o;
+    o.replicates = 5;
+    o.seed = 11;
+    o.threads = 2;
+    const auto boot = pipeline::bootstrap(model, base, o);
+    REQUIRE(boot.failed == 0);
+    std::set<std::string> quantities;
+    for (const auto& b : boot.intervals) {
+        quantities.insert(b.quantity);
+        if (b.quantity == "hazard" || b.quantity == "trapping" || b.quantity == "arrival") {
+            INFO(b.quantity << " " << b.target);
+            CHECK(b.replicates == 5);
+            CHECK(b.std_error > 0.0);  // neighbours and stations were resampled
+            // Resampling 60 neighbours and 25 stations moves τ, h and a by a few percent at
+            // most (relative SE ≈ 1/√(units)); a tenfold error would mean a broken resample.
+            CHECK(b.std_error < 0.5 * b.estimate);
+        }
+    }
+    CHECK(quantities.count("hazard") == 1);
+    CHECK(quantities.count("trapping") == 1);
+    CHECK(quantities.count("arrival") == 1);
+    CHECK(quantities.count("scenario_delta_lambda") == 1);
 }

@@ -98,6 +98,14 @@ public:
     std::optional<std::int64_t> optional_integer(std::size_t row, std::size_t col) const;
     std::optional<bool> optional_flag(std::size_t row, std::size_t col) const;
 
+    /// A table with the given data rows of this one, in the order given (a row may repeat, as
+    /// in a bootstrap resample); header, file name and source lines are kept. Throws
+    /// UsageError for a row index out of range.
+    CsvTable select_rows(const std::vector<std::size_t>& rows) const;
+    /// Replace the text of one cell (e.g. to give a resampled plant a distinct tag); its source
+    /// line is kept. Throws UsageError for an index out of range.
+    void set_cell(std::size_t row, std::size_t col, std::string text);
+
     /// The location of a cell: {file, line, column = field index + 1, key = header name}.
     SourceLocation where(std::size_t row, std::size_t col) const;
     /// A DataError located at a cell, e.g. for checks done by the caller.

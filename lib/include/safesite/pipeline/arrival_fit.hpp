@@ -42,6 +42,16 @@ struct FormTrapping {
     NeighbourSizeSource source = NeighbourSizeSource::trials;
 };
 
+/// Both seed experiments as read (e.g. once for every bootstrap replicate).
+struct ExperimentData {
+    arrival::TrappingData trapping;
+    arrival::RetentionData retention;
+};
+
+/// Read `[data] trapping` and `retention` of `model` with their column maps.
+/// \throws SpecError when either path is missing; DataError as the arrival readers.
+ExperimentData read_experiments(const spec::ModelSpec& model);
+
 /// What the census contributes to the arrival chain.
 struct ArrivalCensusInputs {
     /// Ground cover per microsite (bare entry 0) by the census rule (pipeline::census_cover);

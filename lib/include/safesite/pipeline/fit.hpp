@@ -23,9 +23,12 @@ namespace safesite::pipeline {
 ///         NumericalError when an estimate cannot be computed.
 FitResult fit(const spec::ModelSpec& model);
 
-/// Fit from a census already read and validated (e.g. by `check`, or a simulation).
+/// Fit from a census already read and validated (e.g. by `check`, a simulation or a bootstrap
+/// replicate); the seed experiments (method = experiments) are `experiments` when given, else
+/// read from the model file's paths.
 /// \throws UsageError when the census has validation errors.
-FitResult fit(const spec::ModelSpec& model, const census::Census& census);
+FitResult fit(const spec::ModelSpec& model, const census::Census& census,
+              const ExperimentData* experiments = nullptr);
 
 /// A model whose rates are all given, without reading the census (prepare_fixed with the
 /// given coefficients as `coefficients` rows). Errors as for prepare_fixed().
