@@ -65,6 +65,9 @@ constexpr Code k_not_seedling{Severity::warning, "first_record_not_seedling",
 constexpr Code k_seedling_later{Severity::warning, "seedling_flag_not_first",
                                 "the seedling flag is set on a plant already recorded in an "
                                 "earlier year; the flag is ignored"};
+constexpr Code k_neighbour_on_bare{Severity::warning, "neighbour_size_on_bare",
+                                   "a neighbour size is recorded for a plant on bare soil; "
+                                   "the value is ignored"};
 
 void add(ValidationReport& r, const Code& c, IssueExample e) {
     r.add(c.severity, c.code, c.message, std::move(e));
@@ -104,6 +107,8 @@ Census read_census(const io::CsvTable& table, CensusOptions options) {
         options.seedling_flag ? table.require("seedling", map) : k_absent;
     const auto col_x = table.locate("x", map);
     const auto col_y = table.locate("y", map);
+    const auto col_neighbour = table.locate("neighbour_size", map);
+    assert(!options.bare || *options.bare < labels.size());
 
     // 1. Type every row; a row with an unreadable cell is reported and left out, but its
     //    plant, year and plot still count as "a row exists" for the missing-row rule.
@@ -224,6 +229,27 @@ Census read_census(const io::CsvTable& table, CensusOptions options) {
                              .value_or(false);
         if (col_x) r.x = cell([&] { return table.optional_real(row, *col_x); });
         if (col_y) r.y = cell([&] { return table.optional_real(row, *col_y); });
+        if (col_neighbour) {
+            r.neighbour_size = cell([&] { return table.optional_real(row, *col_neighbour); });
+            if (r.neighbour_size && *r.neighbour_size <= 0.0) {
+                add(report, k_bad_value,
+                    where(*col_neighbour, "neighbour_size " +
+                                              q(table.cell(row, *col_neighbour)) +
+                                              " is not positive; expected a size > 0 on the "
+                                              "raw scale, or an empty cell"));
+                r.neighbour_size.reset();
+                ok = false;
+            } else if (r.neighbour_size && options.bare &&
+                       r.microsite == labels[*options.bare]) {
+                add(report, k_neighbour_on_bare,
+                    where(*col_neighbour, "plant " + q(r.plant) + " is on bare soil (" +
+                                              q(r.microsite) + ") in " +
+                                              std::to_string(r.year) +
+                                              " but has neighbour_size " +
+                                              q(table.cell(row, *col_neighbour))));
+                r.neighbour_size.reset();
+            }
+        }
         if (ok) records.push_back(std::move(r));
     }
 
@@ -331,6 +357,7 @@ Census read_census(const io::CsvTable& table, CensusOptions options) {
                 nf.seedling = false;
                 nf.x.reset();
                 nf.y.reset();
+                nf.neighbour_size.reset();
                 nf.line = 0;
                 added.push_back(std::move(nf));
             }
@@ -437,7 +464,31 @@ Census read_census(const io::CsvTable& table, CensusOptions options) {
 
     c.m_records = std::move(records);
     c.m_options = std::move(options);
+    c.m_has_neighbour_sizes = col_neighbour.has_value();
     return c;
+}
+
+std::map<std::string, std::vector<double>> Census::neighbour_sizes_by_microsite() const {
+    const auto& labels = m_options.microsites;
+    // Records are sorted by plant then year; file order is line order. Alive rows are never
+    // added by the missing-row policy (those are notfound, line 0), so every line is > 0.
+    std::vector<std::size_t> order;
+    for (std::size_t k = 0; k < m_records.size(); ++k) {
+        const CensusRecord& r = m_records[k];
+        if (r.status == Status::alive && r.neighbour_size) order.push_back(k);
+    }
+    std::sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
+        return m_records[a].line < m_records[b].line;
+    });
+    std::map<std::string, std::vector<double>> out;
+    for (std::size_t m = 0; m < labels.size(); ++m)
+        if (!m_options.bare || m != *m_options.bare) out[labels[m]];
+    for (std::size_t k : order) {
+        const CensusRecord& r = m_records[k];
+        const auto it = out.find(r.microsite);
+        if (it != out.end()) it->second.push_back(*r.neighbour_size);
+    }
+    return out;
 }
 
 Census load_census(const std::filesystem::path& file, CensusOptions options) {

@@ -7,6 +7,7 @@ census::CensusOptions to_census_options(const ModelSpec& spec) {
     o.columns = spec.data.census_columns;
     o.transform = spec.size_transform;
     o.microsites = spec.microsites.labels;
+    o.bare = spec.microsites.bare_index;
     o.missing_row = spec.census.missing_row;
     o.seedling_flag = spec.census.seedling_flag;
     return o;

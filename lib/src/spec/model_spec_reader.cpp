@@ -284,8 +284,8 @@ std::filesystem::path resolve(const std::filesystem::path& model_file, const std
     return (model_file.parent_path() / given).lexically_normal();
 }
 
-const Keys k_census_columns{"plant",   "year",  "plot",     "microsite", "size", "status",
-                            "flowered", "seeds", "seedling", "x",         "y"};
+const Keys k_census_columns{"plant",    "year",  "plot",     "microsite", "size", "status",
+                            "flowered", "seeds", "seedling", "x",         "y",    "neighbour_size"};
 const Keys k_trapping_columns{"neighbour", "form",     "neighbour_size",
                               "seed_type", "launched", "trapped"};
 const Keys k_retention_columns{"seed", "station", "microsite", "seed_type", "day", "present"};

@@ -28,7 +28,8 @@ TEST_CASE("a fitted model file is read into typed values", "[spec][unit]") {
     CHECK_FALSE(m.data.trapping.has_value());
     CHECK(m.data.census_columns.at("plant") == "tag");
     CHECK(m.data.census_columns.at("y") == "north");
-    CHECK(m.data.census_columns.size() == 11);
+    CHECK(m.data.census_columns.at("neighbour_size") == "nb_cm");
+    CHECK(m.data.census_columns.size() == 12);
     CHECK(m.census.missing_row == MissingRowPolicy::notfound);
     CHECK(m.census.seedling_flag);
 
@@ -164,6 +165,8 @@ TEST_CASE("census reading options come from the model file", "[spec][unit]") {
     CHECK(o.columns.at("size") == "rosette_cm");
     CHECK(o.transform == SizeTransform::log);
     CHECK(o.microsites == m.microsites.labels);
+    CHECK(o.bare.value() == 0);  // bare = "gravel", the first label of the fixture
+    CHECK(o.columns.at("neighbour_size") == "nb_cm");
     CHECK(o.missing_row == MissingRowPolicy::notfound);
     CHECK(o.seedling_flag);
 }

@@ -10,6 +10,7 @@
 #include <cstddef>
 #include <cstdint>
 #include <filesystem>
+#include <map>
 #include <optional>
 #include <string>
 #include <utility>
@@ -29,6 +30,9 @@ struct CensusOptions {
     io::ColumnMap columns;                 ///< our column name → the file's
     SizeTransform transform = SizeTransform::none;
     std::vector<std::string> microsites;   ///< known labels, in model order
+    /// Position of the bare-soil label in `microsites` (spec: `[microsites].bare`); empty when
+    /// none is named, and then no row counts as bare soil (every label is a neighbour form).
+    std::optional<std::size_t> bare;
     MissingRowPolicy missing_row = MissingRowPolicy::error;
     bool seedling_flag = true;             ///< the file has a `seedling` column
 };
@@ -54,6 +58,27 @@ public:
     /// Per record: the row is the plant's first record and the plant was a new recruit.
     bool is_seedling_row(std::size_t record) const { return m_seedling_row.at(record); }
 
+    /// The file has a `neighbour_size` column (possibly with every cell empty).
+    bool has_neighbour_sizes() const noexcept { return m_has_neighbour_sizes; }
+
+    /// Neighbour sizes seen by the census, per neighbour form: for every microsite label other
+    /// than the bare-soil one (CensusOptions::bare), the `neighbour_size` values (raw scale,
+    /// > 0) of the records with status alive that have one, one value per plant-year record,
+    /// in file order (ascending line). A label with no such record maps to an empty vector;
+    /// without the column every vector is empty.
+    ///
+    /// Use: the sample from which the trapping probability of form f is averaged,
+    /// \f$ \bar\tau_f = \frac{1}{n_f} \sum_{i=1}^{n_f} \tau_f(d_i) \f$ over the n_f values
+    /// d_i of label f (docs/methods/census.md, "Neighbour sizes").
+    ///
+    /// Modelling assumption (ours, not a cited result): a seed meets a neighbour in
+    /// proportion to the neighbour's area, and focal plants come to stand under neighbours
+    /// roughly in proportion to area too, so the census records under form f sample neighbour
+    /// sizes the way seeds meet them (area-weighted), and the plain mean above needs no
+    /// further weighting. A neighbour with several focal plants under it is counted once per
+    /// record.
+    std::map<std::string, std::vector<double>> neighbour_sizes_by_microsite() const;
+
 private:
     friend Census read_census(const io::CsvTable& table, CensusOptions options);
     std::string m_file;
@@ -64,12 +89,14 @@ private:
     std::vector<std::pair<std::size_t, std::size_t>> m_transitions;
     std::vector<std::size_t> m_recruits;
     std::vector<bool> m_seedling_row;
+    bool m_has_neighbour_sizes = false;
 };
 
 /// Type and validate a parsed census file. Data problems are collected in report(); only a
 /// missing required column (plant, year, plot, microsite, status, size, flowered, and seedling
-/// when options.seedling_flag) throws a DataError at once. Precondition: options.microsites
-/// is not empty.
+/// when options.seedling_flag) throws a DataError at once. Optional columns: seeds, x, y,
+/// neighbour_size. Preconditions: options.microsites is not empty; options.bare, when set,
+/// is < options.microsites.size().
 Census read_census(const io::CsvTable& table, CensusOptions options);
 
 /// Read, type and validate a census file; throws DataError for malformed CSV, a missing

@@ -25,6 +25,11 @@ struct CensusRecord {
     std::optional<std::int64_t> seeds;  ///< empty = not counted
     bool seedling = false;            ///< the seedling flag of the row
     std::optional<double> x, y;       ///< coordinates, read for validation only
+    /// Size of the neighbour plant the record stands under, that year, on the raw scale of
+    /// the file (e.g. its diameter in cm; > 0). Empty when not measured, when the file has no
+    /// `neighbour_size` column, and on bare-soil rows (where a value is ignored with the
+    /// warning `neighbour_size_on_bare`). Never transformed.
+    std::optional<double> neighbour_size;
     std::size_t line = 0;             ///< file line; 0 for a row added by missing_row = notfound
 };
 
