@@ -46,12 +46,6 @@ Eigen::VectorXd given_arrival(const spec::ModelSpec& model) {
     return Eigen::Map<const Eigen::VectorXd>(model.arrival.fractions.data(), n);
 }
 
-// Neighbour sizes per growth form from the census (empty when it has none).
-std::map<std::string, std::vector<double>> census_neighbour_sizes(const census::Census& c) {
-    (void)c;
-    return {};
-}
-
 // Two-sided normal p-value of a Wald z: erfc(|z| / √2).
 double wald_p(double z) {
     return std::isfinite(z) ? std::erfc(std::abs(z) / std::sqrt(2.0)) : CoefficientRow::nan;
@@ -187,7 +181,7 @@ FitResult fit(const spec::ModelSpec& model, const census::Census& c,
         ArrivalCensusInputs inputs;
         if (model.arrival.cover_from_census)
             inputs.cover = census_cover(td.transitions, layout.microsites, m.bare);
-        inputs.neighbour_sizes = census_neighbour_sizes(c);
+        inputs.neighbour_sizes = c.neighbour_sizes_by_microsite();
         out.arrival = experiments ? fit_arrival(model, experiments->trapping,
                                                 experiments->retention, inputs)
                                   : fit_arrival(model, inputs);

@@ -364,3 +364,36 @@ TEST_CASE("bootstrap with the seed experiments: chain quantities get intervals",
     CHECK(quantities.count("arrival") == 1);
     CHECK(quantities.count("scenario_delta_lambda") == 1);
 }
+
+TEST_CASE("fit: τ is averaged over the census neighbour sizes when the census has them",
+          "[pipeline][unit]") {
+    const Experiments e = write_experiments();
+    spec::ModelSpec model = experiments_model(e);
+    // The fixture census with a neighbour_size column: 20 (raw scale) for every record under
+    // a cushion, empty on bare gravel.
+    std::ifstream in(std::string(SAFESITE_TEST_DATA) + "/pipeline_census_small.csv");
+    std::string text;
+    std::size_t alive_cushion = 0;
+    for (std::string line; std::getline(in, line);) {
+        if (line.empty() || line[0] == '#') {
+            text += line + "\n";
+        } else if (line.rfind("plant,", 0) == 0) {
+            text += line + ",neighbour_size\n";
+        } else {
+            const bool cushion = line.find(",cushion,") != std::string::npos;
+            if (cushion && line.find(",alive,") != std::string::npos) ++alive_cushion;
+            text += line + (cushion ? ",20\n" : ",\n");
+        }
+    }
+    write(e.dir / "census.csv", text);
+    model.data.census = e.dir / "census.csv";
+    const auto r = pipeline::fit(model);
+    const auto& t = r.arrival->trapping_by_form[0];
+    CHECK(t.source == pipeline::NeighbourSizeSource::census);
+    CHECK(t.sizes == alive_cushion);
+    // Every size is 20, so τ is the fitted probability at size 20 (no random intercept).
+    const double expected =
+        arrival::trapping_by_form(r.arrival->trapping, "plumed", {{"cushion", {20.0}}})
+            .at("cushion");
+    CHECK(r.arrival->chain.trapping[1] == Approx(expected).epsilon(1e-14));
+}
