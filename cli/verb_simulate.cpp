@@ -1,17 +1,26 @@
 // `safesite simulate TRUTH --plants N --years Y --seed S --out DIR`: invent a census from a
 // truth model file (docs/methods/simulation.md).
+#include <filesystem>
 #include <memory>
+#include <optional>
+#include <string>
+#include <vector>
 #include <ostream>
 
 #include <CLI/CLI.hpp>
 #include <fmt/format.h>
 
 #include "common.hpp"
+#include "safesite/arrival/retention_data.hpp"
+#include "safesite/arrival/trapping_data.hpp"
+#include "safesite/error.hpp"
+#include "safesite/io/atomic_file.hpp"
 #include "safesite/pipeline/analyse.hpp"
 #include "safesite/pipeline/fixed_model.hpp"
 #include "safesite/report/output_folder.hpp"
 #include "safesite/report/text_summary.hpp"
 #include "safesite/sim/census_simulation.hpp"
+#include "safesite/sim/seed_experiments.hpp"
 #include "verbs.hpp"
 
 namespace safesite::cli {
@@ -26,8 +35,14 @@ struct SimulateOptions {
 };
 
 /// λ of every true year kernel (and of the pooled kernel without deviations), when the truth
-/// file gives mesh bounds.
-report::TidyTable true_lambda(const spec::ModelSpec& model, const sim::CensusSimulation& s) {
+/// file gives mesh bounds. With seed experiments the kernels use the true chain's arrival
+/// fractions (`chain_fractions`, not normalised).
+report::TidyTable true_lambda(spec::ModelSpec model, const sim::CensusSimulation& s,
+                              const std::vector<double>* chain_fractions) {
+    if (chain_fractions) {
+        model.arrival.method = spec::ArrivalMethod::fractions;
+        model.arrival.fractions = *chain_fractions;
+    }
     pipeline::FixedModelOptions fo;
     // Transitions t → t+1 exist for every census year but the last.
     fo.years.assign(s.years.begin(), s.years.end() - 1);
@@ -45,6 +60,21 @@ report::TidyTable true_lambda(const spec::ModelSpec& model, const sim::CensusSim
     return t;
 }
 
+/// Write text as `<dir>/<name>` atomically (errors as InputError with key "out", like
+/// report::write_csv).
+void write_text(const std::filesystem::path& dir, const std::string& name,
+                const std::string& content) {
+    const std::filesystem::path path = dir / name;
+    try {
+        io::ensure_directory(dir);
+        io::write_file_atomic(path, content);
+    } catch (const InputError&) {
+        throw;
+    } catch (const Error& e) {
+        throw InputError({path.string(), 0, 0, "out"}, e.what());
+    }
+}
+
 int run_simulate(SimulateOptions o, const Streams& io) {
     const spec::ModelSpec model = load_model(o.truth);
     o.sim.coordinates = !o.no_coordinates;
@@ -60,16 +90,34 @@ int run_simulate(SimulateOptions o, const Streams& io) {
                                report::integer(static_cast<std::int64_t>(s.untagged[k]))});
     }
     std::vector<report::TidyTable> shown = {counts};
+    std::optional<sim::SeedExperiments> experiments;
+    if (model.experiment_truth) {
+        progress(io, "simulating the trapping trials and retention checks");
+        experiments = sim::simulate_experiments(model, o.sim.seed);
+        written_tables.push_back(experiments->truth_arrival);
+        written_tables.push_back(experiments->truth_trapping);
+        written_tables.push_back(experiments->truth_hazards);
+        shown.push_back(experiments->truth_arrival);
+    }
     if (model.mesh.lower && model.mesh.upper) {
         progress(io, "computing λ of the true year kernels");
-        written_tables.push_back(true_lambda(model, s));
+        written_tables.push_back(
+            true_lambda(model, s, experiments ? &experiments->truth.fractions : nullptr));
         shown.push_back(written_tables.back());
     }
     for (const auto& t : written_tables) report::write_csv(o.out, t);
+    if (experiments) {
+        write_text(o.out, "trapping.csv", arrival::format_trapping_csv(experiments->trapping));
+        write_text(o.out, "retention.csv", arrival::format_retention_csv(experiments->retention));
+    }
     const auto info = run_info("simulate", o.truth, model, o.sim.seed, {}, {});
     io.out << report::render_summary(shown, info);
-    io.out << "wrote " << s.census.rows.size() << " census rows and the truth to " << o.out
-           << "\n";
+    io.out << "wrote " << s.census.rows.size() << " census rows";
+    if (experiments) {
+        io.out << ", " << experiments->trapping.size() << " trapping trials, "
+               << experiments->retention.size() << " retention checks";
+    }
+    io.out << " and the truth to " << o.out << "\n";
     return 0;
 }
 
@@ -81,7 +129,10 @@ Verb add_simulate_verb(CLI::App& app) {
         "simulate", "Invent a census from a truth model file whose vital rates are all given "
                     "(with year_sd for year-to-year variation): writes census.csv, "
                     "truth-years.csv (the drawn year deviations) and, when the truth file "
-                    "gives mesh bounds, truth-lambda.csv. Same seed, same files.");
+                    "gives mesh bounds, truth-lambda.csv. A truth with [simulate.trapping] and "
+                    "[simulate.retention] also gets trapping.csv, retention.csv and "
+                    "truth-arrival.csv, truth-trapping.csv, truth-hazards.csv, and its census "
+                    "arrives by the true arrival chain. Same seed, same files.");
     cmd->add_option("TRUTH", o->truth, "truth model file (TOML) with coefficients for every rate")
         ->required();
     cmd->add_option("--plants", o->sim.plants, "tagged plants at the first census")

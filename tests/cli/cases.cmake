@@ -50,5 +50,10 @@ safesite_cli_case(NAME demo-run
                   ARGS "run|models/ridge.toml|--out|${CMAKE_CURRENT_BINARY_DIR}/demo-out" STATUS 0
                   STDOUT "lambda.*2015.*pooled"
                   FILES "${CMAKE_CURRENT_BINARY_DIR}/demo-out/lambda.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/summary.json|${CMAKE_CURRENT_BINARY_DIR}/demo-out/coefficients.csv")
+# A truth with seed experiments: the experiments and the truth of the arrival chain.
+safesite_cli_case(NAME simulate-experiments
+                  ARGS "simulate|models/ridge-truth-experiments.toml|--plants|200|--years|3|--seed|1|--burn-in|2|--out|${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments"
+                  STATUS 0 STDOUT "truth-arrival.*gravel.*cushion.*tussock"
+                  FILES "${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments/trapping.csv|${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments/retention.csv|${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments/truth-arrival.csv|${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments/census.csv")
 safesite_cli_case(NAME eval-fixed-example ARGS "eval|models/fixed-example.toml" STATUS 0
                   STDOUT "pooled +[0-9.]+")

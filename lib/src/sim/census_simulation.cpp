@@ -8,11 +8,13 @@
 
 #include <fmt/format.h>
 
+#include "detail/streams.hpp"
 #include "detail/variates.hpp"
 #include "safesite/census/size_transform.hpp"
 #include "safesite/error.hpp"
 #include "safesite/pipeline/fixed_model.hpp"
 #include "safesite/pipeline/kernel_rates.hpp"
+#include "safesite/sim/arrival_truth.hpp"
 
 namespace safesite::sim {
 
@@ -21,15 +23,14 @@ namespace {
 using detail::Variates;
 using report::Cell;
 
-// Stream ids (one per kind of draw, so that changing one kind of wart does not move the
-// population's draws).
-enum Stream : std::uint64_t {
-    burn_in_stream = 1,
-    year_stream = 2,
-    process_stream = 3,
-    wart_stream = 4,
-    place_stream = 5,
-};
+// Stream ids: detail/streams.hpp (one per kind of draw, so that changing one kind of wart
+// does not move the population's draws).
+using detail::burn_in_stream;
+using detail::neighbour_size_stream;
+using detail::place_stream;
+using detail::process_stream;
+using detail::wart_stream;
+using detail::year_stream;
 
 constexpr std::size_t k_max_rows = 5'000'000;
 
@@ -40,6 +41,7 @@ struct Plant {
     double z = 0.0;        // size on the kernel scale
     int age = 0;           // census years since first seen; 0 = new recruit
     double x = 0.0, y = 0.0;
+    double neighbour_size = 0.0;  // raw scale; set at tagging under a neighbour form
 };
 
 /// One year's draws for every plant of a population.
@@ -55,7 +57,11 @@ struct YearDraws {
 struct Truth {
     const spec::ModelSpec* model = nullptr;
     pipeline::KernelLayout layout;
-    std::vector<double> arrival;        // a_m
+    std::vector<double> arrival;        // a_m (Σ ≤ 1 from the arrival chain)
+    /// With seed experiments: log(neighbour size) ~ N(mean_m, sd²) per non-bare microsite.
+    bool neighbour_sizes = false;
+    std::map<std::size_t, double> log_size_mean;
+    double log_size_sd = 0.0;
     std::vector<double> establishment;  // e_m
     bool negbin = false;
     double theta = 1.0;
@@ -213,14 +219,26 @@ Truth make_truth(const spec::ModelSpec& model, const std::vector<std::string>& y
                         "a truth file needs [establishment] method = \"fixed\" with values "
                         "for every microsite");
     }
-    if (model.arrival.method != spec::ArrivalMethod::fractions ||
-        model.arrival.fractions.size() != model.microsites.labels.size()) {
+    if (model.arrival.method == spec::ArrivalMethod::experiments && model.experiment_truth) {
+        // The true arrival chain (arrival_truth.hpp); its fractions are not normalised: the
+        // seeds lost on the way (1 − Σ a) recruit nowhere.
+        t.arrival = true_arrival(model).fractions;
+        t.neighbour_sizes = true;
+        for (std::size_t m = 0; m < model.microsites.labels.size(); ++m) {
+            if (m == model.microsites.bare_index) continue;
+            t.log_size_mean[m] =
+                model.experiment_truth->trapping.log_size_mean.at(model.microsites.labels[m]);
+        }
+        t.log_size_sd = model.experiment_truth->trapping.log_size_sd;
+    } else if (model.arrival.method != spec::ArrivalMethod::fractions ||
+               model.arrival.fractions.size() != model.microsites.labels.size()) {
         throw SpecError({model.file.string(), model.arrival.at.line, 0, "arrival.fractions"},
                         "simulate needs the arrival fractions given directly in [arrival] "
-                        "fractions (truth parameters of the seed experiments are not part of "
-                        "the model file)");
+                        "fractions, or arrival.method = \"experiments\" with the truth of the "
+                        "experiments in [simulate.trapping] and [simulate.retention]");
+    } else {
+        t.arrival = model.arrival.fractions;
     }
-    t.arrival = model.arrival.fractions;
     t.establishment = model.establishment.values;
     return t;
 }
@@ -280,6 +298,7 @@ CensusSimulation simulate_census(const spec::ModelSpec& model, const SimulationO
     Variates life(o.seed, process_stream);
     Variates warts(o.seed, wart_stream);
     Variates place(o.seed, place_stream);
+    Variates neighbour(o.seed, neighbour_size_stream);  // used only with seed experiments
 
     // Burn-in: plants with recruit sizes, microsites by the arrival fractions, uniform plots;
     // years with deviations from their own stream under year label "burn-in".
@@ -334,6 +353,13 @@ CensusSimulation simulate_census(const spec::ModelSpec& model, const SimulationO
             p.x = round2(place.uniform() * o.plot_side_m);
             p.y = round2(place.uniform() * o.plot_side_m);
         }
+        // The neighbour a plant grows under, drawn once and kept for life (raw scale, 4
+        // significant digits as in the trapping trials).
+        if (truth.neighbour_sizes && p.microsite != model.microsites.bare_index) {
+            const double log_size =
+                neighbour.normal(truth.log_size_mean.at(p.microsite), truth.log_size_sd);
+            p.neighbour_size = std::stod(fmt::format("{:.4g}", std::exp(log_size)));
+        }
     };
     // Tag in plot order so that tag numbers follow plots.
     std::stable_sort(pop.begin(), pop.end(),
@@ -344,6 +370,7 @@ CensusSimulation simulate_census(const spec::ModelSpec& model, const SimulationO
     out.census.name = "census";
     out.census.columns = {"plant", "year", "plot", "microsite", "size",
                           "status", "flowered", "seeds", "seedling"};
+    if (truth.neighbour_sizes) out.census.columns.push_back("neighbour_size");
     if (o.coordinates) {
         out.census.columns.push_back("x");
         out.census.columns.push_back("y");
@@ -362,6 +389,11 @@ CensusSimulation simulate_census(const spec::ModelSpec& model, const SimulationO
                                std::move(flowered),
                                std::move(seeds),
                                report::integer(seedling ? 1 : 0)};
+        if (truth.neighbour_sizes) {
+            r.push_back(p.microsite == model.microsites.bare_index
+                            ? report::missing()
+                            : report::number(p.neighbour_size));
+        }
         if (o.coordinates) {
             r.push_back(report::number(p.x));
             r.push_back(report::number(p.y));

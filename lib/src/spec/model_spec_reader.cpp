@@ -648,6 +648,177 @@ ScenarioSpec read_scenario(const TableReader& r, const MicrositeSpec& ms, const 
     return s;
 }
 
+/// A whole number n with 1 ≤ n ≤ 100000 (a guard against typos that would make a simulation
+/// run for hours; common practice).
+std::int64_t count_key(const TableReader& r, std::string_view k, const std::string& what) {
+    auto n = r.integer(k);
+    if (!n) r.missing(k, what);
+    if (*n < 1 || *n > 100000)
+        r.fail(k, "'" + r.key(k) + "' = " + std::to_string(*n) +
+                      " is out of range; expected an integer 1 ≤ n ≤ 100000");
+    return *n;
+}
+
+double required_number(const TableReader& r, std::string_view k, const std::string& what) {
+    auto x = r.number(k);
+    if (!x) r.missing(k, what);
+    return *x;
+}
+
+/// Check days: start at 0, at least two, strictly increasing.
+std::vector<double> schedule_key(const TableReader& r, std::string_view k) {
+    auto days = r.numbers(k);
+    if (!days) r.missing(k, "check days, e.g. [0, 1, 3, 7, 14]");
+    if (days->size() < 2 || days->front() != 0.0)
+        r.fail(k, "'" + r.key(k) + "' must start at day 0 and hold at least two checks");
+    for (std::size_t i = 1; i < days->size(); ++i)
+        if (!((*days)[i] > (*days)[i - 1]))
+            r.fail(k, "'" + r.key(k) + "': day " + fmt_number((*days)[i]) + " follows day " +
+                          fmt_number((*days)[i - 1]) + "; expected strictly increasing days");
+    return *days;
+}
+
+TrappingTruthSpec read_trapping_truth(const TableReader& r, const MicrositeSpec& ms,
+                                      const Context& ctx) {
+    r.allow({"intercept", "log_size_slope", "form_effect", "seed_type_effect", "neighbour_sd",
+             "neighbours_per_form", "log_size_mean", "log_size_sd", "launched"});
+    TrappingTruthSpec t;
+    t.intercept = required_number(r, "intercept", "β0 on the logit scale");
+    t.log_size_slope =
+        required_number(r, "log_size_slope", "slope per unit of log(neighbour_size)");
+    const auto any = range_check(ctx.file, -std::numeric_limits<double>::infinity(),
+                                 std::numeric_limits<double>::infinity(), "a finite number");
+    if (auto m = r.number_map("form_effect"))
+        t.form_effect = label_map(r, "form_effect", *m, ms, false, true, any);
+    auto types = r.number_map("seed_type_effect");
+    if (!types)
+        r.missing("seed_type_effect", "logit-scale effect per seed type, e.g. { plumed = 0.0 }");
+    if (types->empty())
+        r.fail("seed_type_effect", "'" + r.key("seed_type_effect") +
+                                       "' is empty; expected at least one seed type");
+    t.seed_type_effect.insert(types->begin(), types->end());
+    if (auto sd = r.number("neighbour_sd")) {
+        r.require_at_least("neighbour_sd", *sd, 0.0);
+        t.neighbour_sd = *sd;
+    }
+    t.neighbours_per_form = static_cast<int>(
+        count_key(r, "neighbours_per_form", "neighbours tried per growth form"));
+    auto means = r.number_map("log_size_mean");
+    if (!means) r.missing("log_size_mean", "mean of log(neighbour size) per neighbour form");
+    t.log_size_mean = label_map(r, "log_size_mean", *means, ms, true, true, any);
+    t.log_size_sd = required_number(r, "log_size_sd", "SD of log(neighbour size)");
+    r.require_at_least("log_size_sd", t.log_size_sd, 0.0);
+    t.launched = count_key(r, "launched", "seeds launched per trial");
+    return t;
+}
+
+RetentionTruthSpec read_retention_truth(const TableReader& r, const MicrositeSpec& ms,
+                                        const Keys& seed_types, const Context& ctx) {
+    r.allow({"hazard_per_day", "station_sd", "stations_per_microsite", "seeds_per_station",
+             "schedule", "irregular_schedule", "irregular_share"});
+    RetentionTruthSpec t;
+    // hazard_per_day = { microsite = { seed_type = h, ... }, ... }: every microsite × type.
+    const toml::node* h = r.node("hazard_per_day");
+    if (!h) r.missing("hazard_per_day", "daily hazard per microsite and seed type");
+    if (!h->is_table())
+        r.wrong_type("hazard_per_day", *h,
+                     "a table of tables, e.g. { gravel = { plumed = 0.09 } }");
+    const std::string hkey = r.key("hazard_per_day");
+    for (auto&& [site_key, site_node] : *h->as_table()) {
+        const std::string site(site_key.str());
+        const std::string where = hkey + "." + site;
+        if (!ms.index(site))
+            ctx.fail(site_key.source(), where,
+                     "'" + where + "': unknown microsite '" + site + "'" +
+                         io::did_you_mean(site, ms.labels) + "; expected one of: " +
+                         list(ms.labels));
+        if (!site_node.is_table())
+            ctx.fail(site_node.source(), where,
+                     "'" + where + "' must be a table of hazards per seed type; got " +
+                         type_name(site_node));
+        auto& row = t.hazard_per_day[site];
+        for (auto&& [type_key, value] : *site_node.as_table()) {
+            const std::string type(type_key.str());
+            const std::string at = where + "." + type;
+            if (std::find(seed_types.begin(), seed_types.end(), type) == seed_types.end())
+                ctx.fail(type_key.source(), at,
+                         "'" + at + "': unknown seed type '" + type + "'" +
+                             io::did_you_mean(type, seed_types) +
+                             "; expected one of the seed types of "
+                             "simulate.trapping.seed_type_effect: " + list(seed_types));
+            double x = 0.0;
+            if (!TableReader::as_number(value, x))
+                ctx.fail(value.source(), at,
+                         "'" + at + "' must be a number; got " + type_name(value));
+            if (!(std::isfinite(x) && x >= 0.0))
+                ctx.fail(value.source(), at,
+                         "'" + at + "' = " + fmt_number(x) +
+                             " is out of range; expected a finite hazard ≥ 0 per day");
+            row[type] = x;
+        }
+        for (const auto& type : seed_types)
+            if (!row.count(type))
+                ctx.fail(site_node.source(), where,
+                         "'" + where + "' has no hazard for seed type '" + type +
+                             "'; expected one for each of: " + list(seed_types));
+    }
+    for (const auto& site : ms.labels)
+        if (!t.hazard_per_day.count(site))
+            r.fail("hazard_per_day", "'" + hkey + "' has no hazards for microsite '" + site +
+                                         "'; expected a table for each of: " + list(ms.labels));
+    if (auto sd = r.number("station_sd")) {
+        r.require_at_least("station_sd", *sd, 0.0);
+        t.station_sd = *sd;
+    }
+    t.stations_per_microsite = static_cast<int>(
+        count_key(r, "stations_per_microsite", "retention stations per microsite"));
+    t.seeds_per_station = static_cast<int>(
+        count_key(r, "seeds_per_station", "seeds of each type placed per station"));
+    t.schedule = schedule_key(r, "schedule");
+    if (auto share = r.number("irregular_share")) {
+        r.require_in("irregular_share", *share, 0.0, 1.0);
+        t.irregular_share = *share;
+    }
+    if (r.has("irregular_schedule")) {
+        t.irregular_schedule = schedule_key(r, "irregular_schedule");
+    } else if (t.irregular_share > 0.0) {
+        r.missing("irregular_schedule", "the check days used for irregular_share of the seeds");
+    }
+    return t;
+}
+
+/// `[simulate]` of a truth file: both sub-tables, with `[arrival] method = "experiments"`, a
+/// cover table and a focal seed type among the simulated ones.
+ExperimentTruthSpec read_experiment_truth(const TableReader& r, const TableReader& arrival,
+                                          const ArrivalSpec& a, const MicrositeSpec& ms,
+                                          const Context& ctx) {
+    r.allow({"trapping", "retention"});
+    if (a.method != ArrivalMethod::experiments)
+        r.fail_here("[simulate] (the truth of the seed experiments) needs arrival.method = "
+                    "\"experiments\"");
+    if (a.cover_from_census)
+        arrival.fail("cover", "'arrival.cover' = \"census\" cannot be a truth: [simulate] "
+                              "needs the cover of each neighbour form given as a table");
+    auto trapping = r.table("trapping");
+    if (!trapping)
+        r.missing("trapping", "[simulate.trapping] must come with [simulate.retention]");
+    auto retention = r.table("retention");
+    if (!retention)
+        r.missing("retention", "[simulate.retention] must come with [simulate.trapping]");
+    ExperimentTruthSpec e;
+    e.at = r.location();
+    e.trapping = read_trapping_truth(*trapping, ms, ctx);
+    const Keys types = e.trapping.seed_types();
+    e.retention = read_retention_truth(*retention, ms, types, ctx);
+    if (std::find(types.begin(), types.end(), a.seed_type) == types.end())
+        arrival.fail("seed_type", "'arrival.seed_type' = \"" + a.seed_type +
+                                      "\" is not a simulated seed type" +
+                                      io::did_you_mean(a.seed_type, types) +
+                                      "; expected one of simulate.trapping.seed_type_effect: " +
+                                      list(types));
+    return e;
+}
+
 DataSpec read_data(const TableReader& r, const std::filesystem::path& file) {
     r.allow({"census", "trapping", "retention", "columns", "trapping_columns",
              "retention_columns"});
@@ -788,7 +959,8 @@ void check_data_needs(const ModelSpec& spec, const Context& ctx) {
         throw SpecError({ctx.file, 0, 0, "establishment.method"},
                         "establishment.method = \"census\" (the default) needs data.census; "
                         "give data.census or method = \"fixed\" with values");
-    if (spec.arrival.method == ArrivalMethod::experiments) {
+    // A truth file with [simulate] invents the experiments: it needs no experiment data.
+    if (spec.arrival.method == ArrivalMethod::experiments && !spec.experiment_truth) {
         if (!spec.data.trapping || !spec.data.retention)
             throw SpecError(spec.arrival.at,
                             "arrival.method = \"experiments\" needs data.trapping and "
@@ -804,7 +976,7 @@ ModelSpec read_document(const toml::table& doc, const std::filesystem::path& fil
     spec.file = file;
     const TableReader root(doc, "", "", ctx);
     root.allow({"model", "data", "census", "mesh", "microsites", "rates", "establishment",
-                "arrival", "scenario", "perturbation", "uncertainty", "output"});
+                "arrival", "scenario", "perturbation", "uncertainty", "output", "simulate"});
     auto required_table = [&](std::string_view k, const std::string& what) {
         auto t = root.table(k);
         if (!t)
@@ -848,10 +1020,9 @@ ModelSpec read_document(const toml::table& doc, const std::filesystem::path& fil
     if (auto r = root.table("establishment"))
         spec.establishment = read_establishment(*r, spec.microsites, ctx);
     // [arrival]
-    {
-        const TableReader r = required_table("arrival", "arrival fractions or experiments");
-        spec.arrival = read_arrival(r, spec.microsites, ctx);
-    }
+    const TableReader arrival_reader =
+        required_table("arrival", "arrival fractions or experiments");
+    spec.arrival = read_arrival(arrival_reader, spec.microsites, ctx);
     // [[scenario]]
     if (const toml::node* n = doc.get("scenario")) {
         if (!n->is_array_of_tables())
@@ -884,6 +1055,10 @@ ModelSpec read_document(const toml::table& doc, const std::filesystem::path& fil
         }
         if (auto b = r->boolean("print_coordinates")) spec.output.print_coordinates = *b;
     }
+    // [simulate] (truth files)
+    if (auto r = root.table("simulate"))
+        spec.experiment_truth =
+            read_experiment_truth(*r, arrival_reader, spec.arrival, spec.microsites, ctx);
 
     check_data_needs(spec, ctx);
     spec.keys.assign(ctx.keys.begin(), ctx.keys.end());

@@ -155,3 +155,30 @@ TEST_CASE("simulate writes the same files for the same seed", "[cli][unit]") {
     CHECK(slurp(a / "census.csv") != slurp(c / "census.csv"));
     for (const auto& d : {a, b, c}) fs::remove_all(d);
 }
+
+TEST_CASE("simulate with seed experiments writes them, the same for the same seed",
+          "[cli][unit]") {
+    const fs::path a = fresh_dir("simx-a"), b = fresh_dir("simx-b");
+    const std::string truth = source("models/ridge-truth-experiments.toml");
+    auto sim = [&](const fs::path& out) {
+        return run({"simulate", truth, "--plants", "150", "--years", "3", "--seed", "5",
+                    "--out", out.string(), "--burn-in", "2"});
+    };
+    const Outcome ra = sim(a);
+    INFO(ra.err);
+    REQUIRE(ra.status == 0);
+    REQUIRE(sim(b).status == 0);
+    // The summary shows the truth arrival table.
+    CHECK(ra.out.find("truth-arrival") != std::string::npos);
+    CHECK(ra.out.find("trapping trials") != std::string::npos);
+    for (const char* f : {"census.csv", "truth-years.csv", "truth-lambda.csv", "trapping.csv",
+                          "retention.csv", "truth-arrival.csv", "truth-trapping.csv",
+                          "truth-hazards.csv"}) {
+        INFO(f);
+        REQUIRE(fs::exists(a / f));
+        CHECK(slurp(a / f) == slurp(b / f));
+    }
+    CHECK(slurp(a / "trapping.csv").rfind("neighbour,form,neighbour_size,seed_type,", 0) == 0);
+    CHECK(slurp(a / "census.csv").find(",neighbour_size,") != std::string::npos);
+    for (const auto& d : {a, b}) fs::remove_all(d);
+}

@@ -36,13 +36,14 @@ std::string documented_block() {
     return text;
 }
 
-/// Key paths of the block: section headers set the prefix, `key = ...` lines (possibly
-/// behind a leading '#') give the keys.
+/// Key paths of the block: section headers (possibly behind a leading '#', as for the
+/// truth-file tables) set the prefix, `key = ...` lines (possibly behind a leading '#') give
+/// the keys.
 std::set<std::string> documented_keys() {
     std::istringstream in(documented_block());
     std::string line, prefix;
     std::set<std::string> keys;
-    const std::regex header(R"(^\[\[?([A-Za-z0-9_.]+)\]\]?)");
+    const std::regex header(R"(^#?\s*\[\[?([A-Za-z0-9_.]+)\]\]?)");
     const std::regex key(R"(^#?\s*([A-Za-z_][A-Za-z0-9_]*)\s*=)");
     while (std::getline(in, line)) {
         std::smatch m;

@@ -14,6 +14,14 @@
 /// rate and year (the truth of that year). Plants keep their plot and microsite for life.
 /// There is no density dependence: with λ > 1 the census grows geometrically (see
 /// SimulationOptions::max_new_per_plot).
+///
+/// With seed experiments in the truth (`[arrival] method = "experiments"` with
+/// `[simulate.trapping]`, `[simulate.retention]`), a_m are the true chain's arrival fractions
+/// (true_arrival() in arrival_truth.hpp; Σ a ≤ 1, the rest of the seeds lost), and the census
+/// gets a `neighbour_size` column: for a plant under a neighbour form, the raw size of its
+/// neighbour, drawn once from the form's log-normal (log_size_mean, log_size_sd) at tagging and
+/// kept for life; empty on bare soil. Those draws have a stream of their own, so the census
+/// draws are those of the same truth with the fractions given directly.
 
 #include <cstddef>
 #include <cstdint>
@@ -51,7 +59,8 @@ struct SimulationOptions {
 /// A simulated census and its truth.
 struct CensusSimulation {
     /// The census in the long format of docs/formats.md (columns plant, year, plot, microsite,
-    /// size, status, flowered, seeds, seedling and, with coordinates, x, y); name "census".
+    /// size, status, flowered, seeds, seedling, with seed experiments neighbour_size, and with
+    /// coordinates x, y); name "census".
     report::TidyTable census;
     /// The drawn year deviations: columns rate, year, deviation, year_sd; name "truth-years".
     report::TidyTable truth_years;
@@ -71,7 +80,8 @@ struct CensusSimulation {
 ///
 /// \throws SpecError when a rate is not fixed (key `rates.<name>.coefficients`), when the
 ///         seeds family is not poisson or negbin (key `rates.seeds.family`), when
-///         establishment values or arrival fractions are not given (keys `establishment.values`,
+///         establishment values are not given (key `establishment.values`), when the arrival
+///         fractions are neither given nor implied by an experiment truth (key
 ///         `arrival.fractions`); UsageError for options out of range; NumericalError when the
 ///         census would exceed 5 million rows (λ far above 1: use a truth with λ near 1 or
 ///         `max_new_per_plot`).

@@ -21,6 +21,7 @@
 #include "safesite/error.hpp"
 #include "safesite/io/csv_table.hpp"
 #include "safesite/spec/arrival_spec.hpp"
+#include "safesite/spec/experiment_truth_spec.hpp"
 #include "safesite/spec/rate_spec.hpp"
 #include "safesite/spec/scenario_spec.hpp"
 
@@ -113,6 +114,9 @@ struct ModelSpec {
     PerturbationSpec perturbation;
     UncertaintySpec uncertainty;
     OutputSpec output;
+    /// `[simulate.trapping]` and `[simulate.retention]`: the truth of the seed experiments
+    /// (truth files for `safesite simulate` only; needs arrival.method = "experiments").
+    std::optional<ExperimentTruthSpec> experiment_truth;
     /// The dotted key paths present in the file, array-of-table entries without an index
     /// (`scenario.name`), maps as one key (`arrival.fractions`); sorted, unique.
     std::vector<std::string> keys;

@@ -26,6 +26,9 @@ public:
         m_rng.seed(seq);
     }
 
+    /// The next raw 64 random bits (e.g. to seed another module's streams).
+    std::uint64_t bits() { return m_rng(); }
+
     /// Uniform on [0, 1) with 53 random bits.
     double uniform() { return static_cast<double>(m_rng() >> 11) * 0x1.0p-53; }
 
