@@ -35,15 +35,11 @@ struct SimulateOptions {
 };
 
 /// λ of every true year kernel (and of the pooled kernel without deviations), when the truth
-/// file gives mesh bounds. With seed experiments the kernels use the true chain's arrival
-/// fractions (`chain_fractions`, not normalised).
-report::TidyTable true_lambda(spec::ModelSpec model, const sim::CensusSimulation& s,
-                              const std::vector<double>* chain_fractions) {
-    if (chain_fractions) {
-        model.arrival.method = spec::ArrivalMethod::fractions;
-        model.arrival.fractions = *chain_fractions;
-    }
+/// file gives mesh bounds. With seed experiments the kernels use the true arrival chain.
+report::TidyTable true_lambda(const spec::ModelSpec& model, const sim::CensusSimulation& s,
+                              const std::optional<sim::SeedExperiments>& experiments) {
     pipeline::FixedModelOptions fo;
+    if (experiments) fo.chain = experiments->truth.chain;
     // Transitions t → t+1 exist for every census year but the last.
     fo.years.assign(s.years.begin(), s.years.end() - 1);
     fo.shifts = s.deviations;
@@ -102,7 +98,7 @@ int run_simulate(SimulateOptions o, const Streams& io) {
     if (model.mesh.lower && model.mesh.upper) {
         progress(io, "computing λ of the true year kernels");
         written_tables.push_back(
-            true_lambda(model, s, experiments ? &experiments->truth.fractions : nullptr));
+            true_lambda(model, s, experiments));
         shown.push_back(written_tables.back());
     }
     for (const auto& t : written_tables) report::write_csv(o.out, t);

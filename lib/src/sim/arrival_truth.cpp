@@ -72,9 +72,9 @@ ArrivalTruth true_arrival(const spec::ModelSpec& model) {
         covered += cover[label];
         trapping[label] = true_trapping(e.trapping, label, t.seed_type);
     }
-    const arrival::ChainParameters params = arrival::make_chain_parameters(
-        labels, model.microsites.bare, cover, trapping, hazard, t.relanding, t.exposure_days);
-    const arrival::ArrivalResult r = arrival::arrival_fractions(params);
+    t.chain = arrival::make_chain_parameters(labels, model.microsites.bare, cover, trapping,
+                                             hazard, t.relanding, t.exposure_days);
+    const arrival::ArrivalResult r = arrival::arrival_fractions(t.chain);
 
     for (std::size_t m = 0; m < labels.size(); ++m) {
         const auto i = static_cast<Eigen::Index>(m);
@@ -101,6 +101,8 @@ report::TidyTable truth_arrival_table(const ArrivalTruth& t) {
                               report::number(t.hazard_per_day[m]),
                               report::number(t.landing[m]), report::number(t.fractions[m])});
     }
+    table.rows.push_back({report::text("lost"), report::missing(), report::missing(),
+                          report::missing(), report::number(0.0), report::number(t.lost)});
     return table;
 }
 

@@ -146,14 +146,18 @@ TEST_CASE("the true arrival fractions are the chain's", "[sim][unit]") {
     CHECK(b.fractions[1] == Approx(l_cushion * std::exp(-0.006 * T)).epsilon(1e-12));
     CHECK(b.fractions[2] == Approx(l_tussock * std::exp(-0.015 * T)).epsilon(1e-12));
 
-    // The table has one row per microsite, trapping missing for bare soil.
+    // The table has one row per microsite, trapping missing for bare soil, and a row "lost".
     const auto table = sim::truth_arrival_table(a);
     CHECK(table.name == "truth-arrival");
     CHECK(table.columns == std::vector<std::string>{"microsite", "cover", "trapping",
                                                     "hazard_per_day", "landing", "fraction"});
-    REQUIRE(table.rows.size() == 3);
+    REQUIRE(table.rows.size() == 4);
     CHECK(std::holds_alternative<report::Missing>(table.rows[0][2]));
     CHECK(std::get<double>(table.rows[1][5]) == a.fractions[1]);
+    CHECK(std::get<std::string>(table.rows[3][0]) == "lost");
+    CHECK(std::get<double>(table.rows[3][5]) == a.lost);
+    // The chain parameters handed on (e.g. to the true kernels) give the same fractions.
+    CHECK(arrival::arrival_fractions(a.chain).fractions[1] == a.fractions[1]);
 
     // A fraction-only truth has no chain.
     auto fractions_only = spec::read_model_spec(std::string(SAFESITE_SOURCE_DIR) +
@@ -224,11 +228,11 @@ TEST_CASE("simulated experiments are written and read back", "[sim][unit]") {
     const auto model = truth_with_experiments();
     const auto s = sim::simulate_experiments(model, 20261201);
     const std::vector<std::string> forms{"cushion", "tussock"};
-    // 2 forms × 40 neighbours × 3 seed types; 3 microsites × 8 stations × 3 types × 5 seeds.
+    // 2 forms × 40 neighbours × 3 seed types; 3 microsites × 20 stations × 3 types × 10 seeds.
     CHECK(s.trapping.size() == 2 * 40 * 3);
     std::set<std::string> seeds;
     for (const auto& c : s.retention) seeds.insert(c.seed);
-    CHECK(seeds.size() == 3 * 8 * 3 * 5);
+    CHECK(seeds.size() == 3 * 20 * 3 * 10);
 
     const fs::path dir = fs::temp_directory_path() / "safesite-sim-experiments-test";
     fs::remove_all(dir);
@@ -252,7 +256,7 @@ TEST_CASE("simulated experiments are written and read back", "[sim][unit]") {
     fs::remove_all(dir);
 
     // The truth tables.
-    CHECK(s.truth_arrival.rows.size() == 3);
+    CHECK(s.truth_arrival.rows.size() == 3 + 1);
     CHECK(s.truth_hazards.rows.size() == 3 * 3);
     CHECK(s.truth_trapping.rows.size() == 2 * 3);
 }

@@ -8,6 +8,7 @@
 #include <string>
 #include <vector>
 
+#include "safesite/arrival/chain_parameters.hpp"
 #include "safesite/report/tidy_table.hpp"
 #include "safesite/spec/experiment_truth_spec.hpp"
 #include "safesite/spec/model_spec.hpp"
@@ -33,6 +34,9 @@ struct ArrivalTruth {
     /// a_m = p_m(T), NOT normalised: Σ a_m = 1 − lost ≤ 1 (arrival::arrival_fractions).
     std::vector<double> fractions;
     double lost = 0.0;               ///< 1 − Σ a_m
+    /// The same parameters as the arrival module takes them (e.g. for
+    /// pipeline::FixedModelOptions::chain, to build the true kernels).
+    arrival::ChainParameters chain;
 };
 
 /// Number of size quantiles in true_trapping(): η is evaluated at the midpoint quantiles
@@ -65,8 +69,10 @@ double true_trapping(const spec::TrappingTruthSpec& truth, const std::string& fo
 /// \throws SpecError (key `simulate`) when the model has no experiment truth.
 ArrivalTruth true_arrival(const spec::ModelSpec& truth);
 
-/// The truth as a table "truth-arrival": one row per microsite with columns microsite, cover,
-/// trapping (missing for bare soil), hazard_per_day, landing, fraction.
+/// The truth as a table "truth-arrival", shaped like the `arrival_chain` output table of a run
+/// (docs/formats.md): one row per microsite with columns microsite, cover, trapping (missing
+/// for bare soil), hazard_per_day, landing, fraction, and a last row `lost` (cover, trapping
+/// and hazard missing, landing 0, fraction 1 − Σ a_m; the fraction column sums to 1).
 report::TidyTable truth_arrival_table(const ArrivalTruth& truth);
 
 }  // namespace safesite::sim
