@@ -3,9 +3,9 @@
 #include <filesystem>
 #include <memory>
 #include <optional>
+#include <ostream>
 #include <string>
 #include <vector>
-#include <ostream>
 
 #include <CLI/CLI.hpp>
 #include <fmt/format.h>
@@ -97,8 +97,7 @@ int run_simulate(SimulateOptions o, const Streams& io) {
     }
     if (model.mesh.lower && model.mesh.upper) {
         progress(io, "computing λ of the true year kernels");
-        written_tables.push_back(
-            true_lambda(model, s, experiments));
+        written_tables.push_back(true_lambda(model, s, experiments));
         shown.push_back(written_tables.back());
     }
     for (const auto& t : written_tables) report::write_csv(o.out, t);
