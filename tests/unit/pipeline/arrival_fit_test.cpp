@@ -128,6 +128,33 @@ spec::ModelSpec experiments_model(const Experiments& e) {
     return m;
 }
 
+// Every kind of scenario change, one scenario each, with the chain modifiers it stands for.
+std::vector<std::pair<spec::ScenarioSpec, arrival::ChainModifiers>> every_scenario_kind() {
+    std::vector<std::pair<spec::ScenarioSpec, arrival::ChainModifiers>> out;
+    auto add = [&](const std::string& name, auto set_spec, auto set_mod) {
+        spec::ScenarioSpec s;
+        s.name = name;
+        arrival::ChainModifiers m;
+        set_spec(s);
+        set_mod(m);
+        out.push_back({s, m});
+    };
+    add("shares", [](auto& s) { s.fraction_shares = {{"gravel", 1.0}}; },
+        [](auto& m) { m.fraction_shares = {{"gravel", 1.0}}; });
+    add("fractions", [](auto& s) { s.fractions = std::vector<double>{0.2, 0.8}; },
+        [](auto& m) { m.fractions = {{"gravel", 0.2}, {"cushion", 0.8}}; });
+    add("cover", [](auto& s) { s.cover_factor = {{"cushion", 0.5}}; },
+        [](auto& m) { m.cover_factor = {{"cushion", 0.5}}; });
+    add("trapping", [](auto& s) { s.trapping_odds_factor = {{"cushion", 3.0}}; },
+        [](auto& m) { m.trapping_odds_factor = {{"cushion", 3.0}}; });
+    add("hazard", [](auto& s) { s.hazard_factor = {{"gravel", 0.5}}; },
+        [](auto& m) { m.hazard_factor = {{"gravel", 0.5}}; });
+    add("exposure", [](auto& s) { s.exposure_days = 80.0; },
+        [](auto& m) { m.exposure_days = 80.0; });
+    add("relanding", [](auto& s) { s.relanding = 0.9; }, [](auto& m) { m.relanding = 0.9; });
+    return out;
+}
+
 const report::TidyTable& table(const std::vector<report::TidyTable>& ts, const std::string& n) {
     for (const auto& t : ts)
         if (t.name == n) return t;
@@ -252,6 +279,24 @@ TEST_CASE("run: chain scenarios and cover sensitivities with fitted experiments"
     for (const auto& x : r.analysis.sensitivities) parameters.insert(x.parameter);
     CHECK(parameters.count("cover") == 1);
     CHECK(parameters.count("hazard") == 1);
+}
+
+TEST_CASE("run: every kind of scenario change reaches the arrival chain", "[pipeline][unit]") {
+    const Experiments e = write_experiments();
+    spec::ModelSpec model = experiments_model(e);
+    model.scenarios.clear();
+    const auto kinds = every_scenario_kind();
+    for (const auto& [s, mod] : kinds) model.scenarios.push_back(s);
+    const pipeline::RunResult r = pipeline::run(model);
+    REQUIRE(r.analysis.scenarios.size() == kinds.size());
+    for (std::size_t i = 0; i < kinds.size(); ++i) {
+        const auto& got = r.analysis.scenarios[i];
+        INFO(got.name);
+        const auto expected = arrival::scenario_arrival(*r.fit.model.chain, kinds[i].second);
+        CHECK((got.arrival - expected.fractions).cwiseAbs().maxCoeff() < 1e-15);
+        // Each change moves the fractions away from the baseline.
+        CHECK((got.arrival - r.fit.model.arrival).cwiseAbs().maxCoeff() > 1e-3);
+    }
 }
 
 TEST_CASE("fit: experiment errors name the key or the file", "[pipeline][unit]") {

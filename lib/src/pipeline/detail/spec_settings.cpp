@@ -59,10 +59,12 @@ ScenarioSettings scenario_settings(const spec::ScenarioSpec& scenario,
         for (std::size_t m = 0; m < microsites.labels.size(); ++m)
             out.arrival.fractions[microsites.labels[m]] = scenario.fractions->at(m);
     }
+    out.arrival.fraction_shares = scenario.fraction_shares;
     out.arrival.cover_factor = scenario.cover_factor;
     out.arrival.trapping_odds_factor = scenario.trapping_odds_factor;
     out.arrival.hazard_factor = scenario.hazard_factor;
     out.arrival.exposure_days = scenario.exposure_days;
+    out.arrival.relanding = scenario.relanding;
     out.establishment_factor = scenario.establishment_factor;
     return out;
 }
