@@ -27,7 +27,7 @@ int run_fit(const FitOptions& o, const Streams& io) {
     for (const auto& w : result.warnings) io.err << "safesite: warning: " << w << "\n";
     const auto info = run_info("fit", o.model, model, std::nullopt, {}, result.warnings);
     report::TextOptions text;
-    text.max_rows = 60;
+    text.max_rows = 100;  // every coefficient of the demo, trapping and retention included
     io.out << report::render_summary(
         pick_tables(tables, {"coefficients", "model_comparison", "establishment", "hazards",
                              "trapping", "arrival_chain"}), info, text);

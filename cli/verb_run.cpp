@@ -59,9 +59,15 @@ int run_run(const RunOptions& o, const Streams& io) {
     const auto written = report::write_output_folder(dir, tables, info);
     report::TextOptions text;
     text.max_rows = 40;
-    io.out << report::render_summary(
-        pick_tables(tables, {"arrival_chain", "lambda", "arrival", "scenarios", "intervals"}),
-        info, text);
+    // The terminal shows the scenarios of the pooled kernel; every year is in the files.
+    auto shown =
+        pick_tables(tables, {"arrival_chain", "lambda", "arrival", "scenarios", "intervals"});
+    for (auto& t : shown)
+        if (t.name == "scenarios")
+            std::erase_if(t.rows, [](const std::vector<report::Cell>& row) {
+                return row.size() > 1 && row[1] != report::Cell(std::string("pooled"));
+            });
+    io.out << report::render_summary(shown, info, text);
     io.out << "wrote " << written.size() << " files to " << dir.string() << "\n";
     return 0;
 }

@@ -47,9 +47,9 @@ safesite_cli_case(NAME eval-needs-fixed-rates ARGS "eval|models/ridge.toml" STAT
 safesite_cli_case(NAME demo-check ARGS "check|models/ridge.toml" STATUS 0
                   STDOUT "census_years.*2015.*Caution")
 safesite_cli_case(NAME demo-run
-                  ARGS "run|models/ridge.toml|--out|${CMAKE_CURRENT_BINARY_DIR}/demo-out" STATUS 0
-                  STDOUT "lambda.*2015.*pooled"
-                  FILES "${CMAKE_CURRENT_BINARY_DIR}/demo-out/lambda.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/summary.json|${CMAKE_CURRENT_BINARY_DIR}/demo-out/coefficients.csv")
+                  ARGS "run|models/ridge.toml|--out|${CMAKE_CURRENT_BINARY_DIR}/demo-out|--replicates|3|--threads|2" STATUS 0
+                  STDOUT "arrival_chain.*lambda.*2015.*pooled.*intervals.*scenario_delta_lambda"
+                  FILES "${CMAKE_CURRENT_BINARY_DIR}/demo-out/lambda.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/summary.json|${CMAKE_CURRENT_BINARY_DIR}/demo-out/coefficients.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/arrival_chain.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/intervals.csv")
 # A truth with seed experiments: the experiments and the truth of the arrival chain.
 safesite_cli_case(NAME simulate-experiments
                   ARGS "simulate|models/ridge-truth-experiments.toml|--plants|200|--years|3|--seed|1|--burn-in|2|--out|${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments"
