@@ -442,3 +442,27 @@ TEST_CASE("fit: τ is averaged over the census neighbour sizes when the census h
             .at("cushion");
     CHECK(r.arrival->chain.trapping[1] == Approx(expected).epsilon(1e-14));
 }
+
+TEST_CASE("eval: a model without a census fits the seed experiments when asked",
+          "[pipeline][unit]") {
+    const Experiments e = write_experiments();
+    spec::ModelSpec model =
+        spec::read_model_spec(std::string(SAFESITE_SOURCE_DIR) + "/models/fixed-example.toml");
+    const spec::ModelSpec with_experiments = experiments_model(e);
+    model.data.trapping = with_experiments.data.trapping;
+    model.data.retention = with_experiments.data.retention;
+    model.data.trapping_columns = with_experiments.data.trapping_columns;
+    model.data.retention_columns = with_experiments.data.retention_columns;
+    model.arrival = with_experiments.arrival;
+    model.scenarios.clear();
+    const pipeline::RunResult r = pipeline::evaluate_fixed(model);
+    REQUIRE(r.fit.arrival.has_value());
+    CHECK(r.analysis.arrival_source == pipeline::ArrivalSource::experiments);
+    CHECK((r.analysis.pooled().arrival - r.fit.arrival->result.fractions).cwiseAbs().maxCoeff() ==
+          0.0);
+    // Without a census, τ comes from the trial neighbours' sizes.
+    CHECK(r.fit.arrival->trapping_by_form[0].source == pipeline::NeighbourSizeSource::trials);
+    bool trapping_rows = false;
+    for (const auto& c : r.fit.coefficients) trapping_rows = trapping_rows || c.rate == "trapping";
+    CHECK(trapping_rows);
+}
