@@ -155,6 +155,18 @@ std::vector<std::pair<spec::ScenarioSpec, arrival::ChainModifiers>> every_scenar
     return out;
 }
 
+// The error fit() stops with; fails the test when it does not throw E.
+template <class E>
+E fit_error(const spec::ModelSpec& model) {
+    try {
+        pipeline::fit(model);
+    } catch (const E& e) {
+        return e;
+    }
+    FAIL("fit() did not throw the expected error");
+    throw std::logic_error("unreachable");
+}
+
 const report::TidyTable& table(const std::vector<report::TidyTable>& ts, const std::string& n) {
     for (const auto& t : ts)
         if (t.name == n) return t;
@@ -304,34 +316,21 @@ TEST_CASE("fit: experiment errors name the key or the file", "[pipeline][unit]")
         const Experiments e = write_experiments();
         spec::ModelSpec model = experiments_model(e);
         model.arrival.seed_type = "winged";
-        try {
-            pipeline::fit(model);
-            FAIL("expected a SpecError");
-        } catch (const SpecError& err) {
-            CHECK(err.key() == "arrival.seed_type");
-            CHECK(std::string(err.what()).find("winged") != std::string::npos);
-        }
+        const SpecError err = fit_error<SpecError>(model);
+        CHECK(err.key() == "arrival.seed_type");
+        CHECK(std::string(err.what()).find("winged") != std::string::npos);
     }
     SECTION("a microsite without retention checks") {
         const Experiments e = write_experiments({"gravel"});
-        try {
-            pipeline::fit(experiments_model(e));
-            FAIL("expected a DataError");
-        } catch (const DataError& err) {
-            CHECK(err.file().find("checks.csv") != std::string::npos);
-            CHECK(std::string(err.what()).find("cushion") != std::string::npos);
-        }
+        const DataError err = fit_error<DataError>(experiments_model(e));
+        CHECK(err.file().find("checks.csv") != std::string::npos);
+        CHECK(std::string(err.what()).find("cushion") != std::string::npos);
     }
     SECTION("a trapping formula reading a column the trials do not have") {
         const Experiments e = write_experiments();
         spec::ModelSpec model = experiments_model(e);
         model.arrival.trapping_formula = "trapped / launched ~ wind_speed";
-        try {
-            pipeline::fit(model);
-            FAIL("expected a SpecError");
-        } catch (const SpecError& err) {
-            CHECK(err.key() == "arrival.trapping_formula");
-        }
+        CHECK(fit_error<SpecError>(model).key() == "arrival.trapping_formula");
     }
     SECTION("cover = \"census\" takes the census share of plant records") {
         const Experiments e = write_experiments();

@@ -7,9 +7,13 @@
 #include <string>
 
 #include "safesite/spec/model_spec.hpp"
+#include "support/spec_text.hpp"
 
 using safesite::SpecError;
 using safesite::spec::parse_model_spec;
+using safesite::test::line_of;
+using safesite::test::mentions;
+using safesite::test::replace;
 
 namespace {
 
@@ -51,32 +55,7 @@ formula = "size ~ microsite"
 fractions = { gravel = 0.5, cushion = 0.3, tussock = 0.2 }
 )";
 
-std::string replace(std::string text, const std::string& from, const std::string& to) {
-    const auto at = text.find(from);
-    if (at == std::string::npos) throw std::logic_error("test edit not found: " + from);
-    return text.replace(at, from.size(), to);
-}
-
-std::size_t line_of(const std::string& text, const std::string& what) {
-    const auto at = text.find(what);
-    if (at == std::string::npos) throw std::logic_error("not in text: " + what);
-    std::size_t line = 1;
-    for (std::size_t i = 0; i < at; ++i) line += text[i] == '\n';
-    return line;
-}
-
-SpecError refused(const std::string& text) {
-    try {
-        (void)parse_model_spec(text, "dir/m.toml");
-    } catch (const SpecError& e) {
-        return e;
-    }
-    throw std::logic_error("the model file was accepted");
-}
-
-bool mentions(const SpecError& e, const std::string& word) {
-    return e.reason().find(word) != std::string::npos;
-}
+SpecError refused(const std::string& text) { return safesite::test::refused(text, "dir/m.toml"); }
 
 }  // namespace
 
