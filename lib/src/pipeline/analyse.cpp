@@ -274,16 +274,26 @@ AnalysisResult analyse(const PreparedModel& model) {
         if (model.chain) {
             // dλ/dθ = Σ_m (dλ/da_m)(∂a_m/∂θ): chain rule through the arrival derivatives.
             const arrival::ArrivalDerivatives da = arrival::arrival_derivatives(*model.chain);
+            const arrival::ChainParameters& c = *model.chain;
             const Eigen::VectorXd d_cover = da.d_cover.transpose() * d_a;
+            const Eigen::VectorXd d_trapping = da.d_trapping.transpose() * d_a;
             const Eigen::VectorXd d_hazard = da.d_hazard_per_day.transpose() * d_a;
             for (std::size_t f = 0; f < sites.size(); ++f) {
                 if (f == model.bare) continue;
-                push("cover", sites[f], model.chain->cover[static_cast<Eigen::Index>(f)],
-                     d_cover[static_cast<Eigen::Index>(f)]);
+                const auto i = static_cast<Eigen::Index>(f);
+                push("cover", sites[f], c.cover[i], d_cover[i]);
             }
-            for (std::size_t m = 0; m < sites.size(); ++m)
-                push("hazard", sites[m], model.chain->hazard_per_day[static_cast<Eigen::Index>(m)],
-                     d_hazard[static_cast<Eigen::Index>(m)]);
+            for (std::size_t f = 0; f < sites.size(); ++f) {
+                if (f == model.bare) continue;
+                const auto i = static_cast<Eigen::Index>(f);
+                push("trapping", sites[f], c.trapping[i], d_trapping[i]);
+            }
+            for (std::size_t m = 0; m < sites.size(); ++m) {
+                const auto i = static_cast<Eigen::Index>(m);
+                push("hazard", sites[m], c.hazard_per_day[i], d_hazard[i]);
+            }
+            push("relanding", "", c.relanding, da.d_relanding.dot(d_a));
+            push("exposure_days", "", c.exposure_days, da.d_exposure_days.dot(d_a));
         }
         const KernelResult& p = out.pooled();
         if (juveniles)

@@ -3,6 +3,8 @@
 // checked against central differences (style guide 4.14: analytic vs finite differences).
 #include <catch2/catch.hpp>
 
+#include <set>
+
 #include <cmath>
 #include <functional>
 
@@ -167,7 +169,7 @@ TEST_CASE("analyse: sensitivities to arrival and establishment match central dif
     }
 }
 
-TEST_CASE("analyse: cover sensitivities by the chain rule match central differences",
+TEST_CASE("analyse: chain-parameter sensitivities by the chain rule match central differences",
           "[pipeline][unit]") {
     PreparedModel m = simple_model(JuvenileMode::seedling_class);
     m.survival_changes.clear();
@@ -184,22 +186,37 @@ TEST_CASE("analyse: cover sensitivities by the chain rule match central differen
     m.arrival = arrival::arrival_fractions(chain).fractions;
     m.arrival_source = ArrivalSource::experiments;
     const AnalysisResult r = analyse(m);
-    auto lambda_at_cover = [&](double c) {
+    // λ with one chain parameter moved, the arrival fractions recomputed from the chain.
+    auto lambda_with = [&](const std::string& parameter, const std::string& target, double x) {
         PreparedModel q = m;
-        q.chain->cover[1] = c;
-        q.arrival = arrival::arrival_fractions(*q.chain).fractions;
+        arrival::ChainParameters& c = *q.chain;
+        const Eigen::Index i = target == "cushion" ? 1 : 0;
+        if (parameter == "cover") c.cover[i] = x;
+        if (parameter == "trapping") c.trapping[i] = x;
+        if (parameter == "hazard") c.hazard_per_day[i] = x;
+        if (parameter == "relanding") c.relanding = x;
+        if (parameter == "exposure_days") c.exposure_days = x;
+        q.arrival = arrival::arrival_fractions(c).fractions;
         return analyse(q).pooled().lambda;
     };
-    bool seen = false;
-    const double h = 1e-6;
+    std::set<std::string> seen;
     for (const auto& s : r.sensitivities) {
-        if (s.parameter != "cover") continue;
-        seen = true;
-        CHECK(s.target == "cushion");
-        const double fd = (lambda_at_cover(0.3 + h) - lambda_at_cover(0.3 - h)) / (2 * h);
-        CHECK(s.sensitivity == Approx(fd).epsilon(1e-5));
+        if (s.parameter == "arrival" || s.parameter == "establishment" ||
+            s.parameter == "juvenile_survival")
+            continue;
+        seen.insert(s.parameter + ":" + s.target);
+        INFO(s.parameter << " " << s.target << " at " << s.value);
+        // Central difference with a step relative to the value (1e-6 of it, or 1e-6 days);
+        // 1e-5 relative agreement as the issue asks.
+        const double h = 1e-6 * std::max(1.0, std::abs(s.value));
+        const double fd = (lambda_with(s.parameter, s.target, s.value + h) -
+                           lambda_with(s.parameter, s.target, s.value - h)) /
+                          (2 * h);
+        CHECK(s.sensitivity == Approx(fd).epsilon(1e-5).margin(1e-10));
+        CHECK(s.elasticity == Approx(s.value / r.pooled().lambda * s.sensitivity).epsilon(1e-12));
     }
-    CHECK(seen);
+    CHECK(seen == std::set<std::string>{"cover:cushion", "trapping:cushion", "hazard:gravel",
+                                        "hazard:cushion", "relanding:", "exposure_days:"});
 }
 
 TEST_CASE("analyse: break-even bare-soil establishment restores the baseline lambda",
