@@ -11,7 +11,7 @@
 #include "safesite/error.hpp"
 #include "safesite/io/csv_table.hpp"
 #include "safesite/pipeline/arrival_fit.hpp"
-#include "sim/detail/variates.hpp"
+#include "core/variates.hpp"
 
 namespace safesite::pipeline {
 
@@ -88,7 +88,7 @@ Strata group_units(std::size_t n, Id id, Stratum stratum) {
 
 // One draw of units with replacement within every stratum: the chosen units, in draw order.
 std::vector<const std::vector<std::size_t>*> draw(const Strata& strata,
-                                                  sim::detail::Variates& rng) {
+                                                  core::Variates& rng) {
     std::vector<const std::vector<std::size_t>*> out;
     for (const auto& units : strata)
         for (std::size_t k = 0; k < units.size(); ++k)
@@ -113,7 +113,7 @@ struct Context {
 };
 
 std::vector<double> replicate(const Context& ctx, std::size_t r, std::uint64_t seed) {
-    sim::detail::Variates rng(seed, r + 1);
+    core::Variates rng(seed, r + 1);
 
     // Census: plant histories within cohorts, each copy under its own tag.
     std::vector<std::size_t> rows;

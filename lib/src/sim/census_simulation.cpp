@@ -9,7 +9,7 @@
 #include <fmt/format.h>
 
 #include "detail/streams.hpp"
-#include "detail/variates.hpp"
+#include "core/variates.hpp"
 #include "safesite/census/size_transform.hpp"
 #include "safesite/error.hpp"
 #include "safesite/pipeline/fixed_model.hpp"
@@ -20,7 +20,7 @@ namespace safesite::sim {
 
 namespace {
 
-using detail::Variates;
+using core::Variates;
 using report::Cell;
 
 // Stream ids: detail/streams.hpp (one per kind of draw, so that changing one kind of wart

@@ -8,7 +8,7 @@
 #include <fmt/format.h>
 
 #include "detail/streams.hpp"
-#include "detail/variates.hpp"
+#include "core/variates.hpp"
 #include "safesite/arrival/experiment_simulation.hpp"
 #include "safesite/error.hpp"
 
@@ -25,7 +25,7 @@ SeedExperiments simulate_experiments(const spec::ModelSpec& model, std::uint64_t
     // (never from the census streams): retention, trapping, then one per neighbour form in
     // label order (simulate_neighbours seeds its stream from its arguments, so each form needs
     // its own seed or all forms would share one sequence of normal deviates).
-    detail::Variates seeds(seed, detail::experiments_stream);
+    core::Variates seeds(seed, detail::experiments_stream);
     const std::uint64_t retention_seed = seeds.bits();
     const std::uint64_t trapping_seed = seeds.bits();
 

@@ -1,6 +1,6 @@
 #pragma once
 // Random stream ids of the simulator (private to lib/src/sim). Each kind of draw has its own
-// stream, derived from (user seed, stream id) by detail::Variates, so that adding one kind of
+// stream, derived from (user seed, stream id) by core::Variates, so that adding one kind of
 // draw (e.g. seed experiments) never moves the draws of another (e.g. the census).
 
 #include <cstdint>

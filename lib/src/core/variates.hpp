@@ -1,5 +1,6 @@
 #pragma once
-// Reproducible random variates for the simulator (private to lib/src/sim).
+// Reproducible random variates (private to the library: the simulator, the bootstrap and
+// stochastic growth draw from it).
 //
 // Every stream is a std::mt19937_64 seeded through std::seed_seq from (seed, stream id)
 // (DEVELOPERS.md, "Randomness"). The variates are computed from the raw 64-bit output with our
@@ -15,7 +16,7 @@
 #include <numbers>
 #include <random>
 
-namespace safesite::sim::detail {
+namespace safesite::core {
 
 class Variates {
 public:
@@ -121,4 +122,4 @@ private:
     double m_spare = 0.0;
 };
 
-}  // namespace safesite::sim::detail
+}  // namespace safesite::core
