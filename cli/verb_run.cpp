@@ -48,10 +48,12 @@ int run_run(const RunOptions& o, const Streams& io) {
         warnings.insert(warnings.end(), boot.warnings.begin(), boot.warnings.end());
     }
     for (const auto& w : warnings) io.err << "safesite: warning: " << w << "\n";
-    // The seed is recorded only when the run draws random numbers (bootstrap replicates).
-    // The thread count is not recorded: it does not change any result.
+    // The seed is recorded only when the run draws random numbers (bootstrap replicates, the
+    // year draws of the stochastic growth rate). The thread count is not recorded: it does not
+    // change any result.
     std::optional<std::uint64_t> seed;
-    if (model.uncertainty.replicates > 0) seed = model.uncertainty.seed;
+    if (model.uncertainty.replicates > 0 || result.analysis.stochastic)
+        seed = model.uncertainty.seed;
     const auto info =
         run_info("run", o.model, model, seed, result.analysis.assumptions, warnings);
     const std::filesystem::path dir = output_dir(o.out, model);
@@ -61,7 +63,8 @@ int run_run(const RunOptions& o, const Streams& io) {
     text.max_rows = 40;
     // The terminal shows the scenarios of the pooled kernel; every year is in the files.
     auto shown =
-        pick_tables(tables, {"arrival_chain", "lambda", "arrival", "scenarios", "intervals"});
+        pick_tables(tables, {"arrival_chain", "lambda", "stochastic_lambda", "arrival",
+                             "scenarios", "intervals"});
     for (auto& t : shown)
         if (t.name == "scenarios")
             std::erase_if(t.rows, [](const std::vector<report::Cell>& row) {

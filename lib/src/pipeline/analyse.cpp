@@ -9,6 +9,7 @@
 #include "safesite/analysis/kernel_sensitivity.hpp"
 #include "safesite/analysis/lambda_derivative.hpp"
 #include "safesite/analysis/life_history.hpp"
+#include "safesite/analysis/stochastic_growth.hpp"
 #include "safesite/arrival/arrival_chain.hpp"
 #include "safesite/error.hpp"
 #include "safesite/kernel/kernel_operator.hpp"
@@ -225,6 +226,24 @@ AnalysisResult analyse(const PreparedModel& model) {
     const std::size_t pooled_index = rates.size() - 1;
     const CurvesPtr& pooled_curves = curves[pooled_index];
     const double lambda0 = out.pooled().lambda;
+
+    // Stochastic growth: the census years' kernels drawn at random, each equally likely.
+    if (model.stochastic_years > 0 && model.years.size() >= 2) {
+        std::vector<std::unique_ptr<kernel::KernelOperator>> ops;
+        std::vector<const kernel::KernelOperator*> views;
+        for (std::size_t i = 0; i < model.years.size(); ++i) {
+            ops.push_back(std::make_unique<kernel::KernelOperator>(
+                mesh, describe_kernel(curves[i], baseline_recruitment(model, i), eviction)));
+            views.push_back(ops.back().get());
+        }
+        analysis::StochasticOptions so;
+        so.years = model.stochastic_years;
+        so.seed = model.stochastic_seed;
+        const analysis::StochasticGrowth g =
+            analysis::stochastic_growth(views, out.pooled().w.cwiseMax(0.0), so);
+        out.stochastic = StochasticResult{model.years.size(), g.years,  g.log_lambda,
+                                          g.lambda,           g.std_error, so.seed};
+    }
 
     // Scenarios: new a (and e) for the pooled and every year kernel.
     for (const ScenarioSettings& scenario : model.scenarios) {

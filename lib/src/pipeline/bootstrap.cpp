@@ -161,6 +161,7 @@ std::vector<double> replicate(const Context& ctx, std::size_t r, std::uint64_t s
     m.break_even = false;
     m.mesh_check = false;
     m.survival_changes.clear();
+    m.stochastic_years = 0;
     const AnalysisResult a = analyse(m);
 
     std::map<std::string, double> got;

@@ -224,6 +224,7 @@ FitResult fit(const spec::ModelSpec& model, const census::Census& c,
     }
 
     m.survival_changes = model.perturbation.survival_changes;
+    m.stochastic_seed = model.uncertainty.seed;
     for (const auto& s : model.scenarios)
         m.scenarios.push_back(detail::scenario_settings(s, model.microsites));
     m.assumptions = detail::pipeline_assumptions(model);

@@ -159,6 +159,7 @@ PreparedModel prepare_fixed(const spec::ModelSpec& model, const FixedModelOption
     out.establishment_by_year.assign(options.years.size(), out.establishment_pooled);
 
     out.survival_changes = model.perturbation.survival_changes;
+    out.stochastic_seed = model.uncertainty.seed;
     for (const auto& s : model.scenarios)
         out.scenarios.push_back(detail::scenario_settings(s, model.microsites));
     out.assumptions = detail::pipeline_assumptions(model);

@@ -166,8 +166,22 @@ TidyTable assumptions_table(const AnalysisResult& r) {
 
 }  // namespace
 
+TidyTable stochastic_table(const AnalysisResult& r) {
+    TidyTable t{"stochastic_lambda",
+                {"environment", "kernels", "years", "log_lambda", "lambda", "std_error", "seed"},
+                {}};
+    if (r.stochastic)
+        t.rows.push_back({txt("census years, equally likely, independent"),
+                          report::integer(static_cast<std::int64_t>(r.stochastic->kernels)),
+                          report::integer(static_cast<std::int64_t>(r.stochastic->years)),
+                          num(r.stochastic->log_lambda), num(r.stochastic->lambda),
+                          num(r.stochastic->std_error),
+                          report::integer(static_cast<std::int64_t>(r.stochastic->seed))});
+    return t;
+}
+
 std::vector<report::TidyTable> analysis_tables(const AnalysisResult& result) {
-    return {lambda_table(result),       perturbation_table(result),
+    return {lambda_table(result),       stochastic_table(result), perturbation_table(result),
             structure_table(result, false), structure_table(result, true),
             arrival_table(result),      scenario_table(result),
             sensitivity_table(result),  break_even_table(result),

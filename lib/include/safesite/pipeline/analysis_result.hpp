@@ -5,7 +5,9 @@
 /// `to_tables` (tables.hpp) turns them into the long-form output tables of docs/formats.md.
 
 #include <cstddef>
+#include <cstdint>
 #include <limits>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -95,6 +97,17 @@ struct BreakEvenResult {
 };
 
 /// Everything `analyse` computes.
+/// The stochastic growth rate of the census years' kernels drawn at random, each year equally
+/// likely and independently (analysis/stochastic_growth.hpp).
+struct StochasticResult {
+    std::size_t kernels = 0;     ///< year kernels drawn from
+    std::size_t years = 0;       ///< simulated years averaged over
+    double log_lambda = 0.0;     ///< log λ_s
+    double lambda = 0.0;         ///< λ_s
+    double std_error = 0.0;      ///< batch-means standard error of log λ_s
+    std::uint64_t seed = 0;      ///< seed of the year draws
+};
+
 struct AnalysisResult {
     KernelLayout layout;
     std::size_t bare = 0;
@@ -103,6 +116,8 @@ struct AnalysisResult {
     std::vector<ScenarioResult> scenarios;
     std::vector<ParameterSensitivity> sensitivities;
     std::vector<BreakEvenResult> break_even;
+    /// With two or more year kernels and PreparedModel::stochastic_years > 0.
+    std::optional<StochasticResult> stochastic;
     std::vector<std::string> assumptions;
     std::vector<std::string> warnings;
 

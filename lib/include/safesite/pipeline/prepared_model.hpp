@@ -7,6 +7,7 @@
 /// consumes it. Plain values only: no file is read after this point.
 
 #include <cstddef>
+#include <cstdint>
 #include <map>
 #include <optional>
 #include <string>
@@ -71,6 +72,10 @@ struct PreparedModel {
     bool break_even = true;
     /// Check mesh convergence by rebuilding every kernel with 2n points.
     bool mesh_check = true;
+    /// Years simulated for the stochastic growth rate of the year kernels (0: not computed;
+    /// needs two or more census years), and the seed of the year draws.
+    std::size_t stochastic_years = 20000;
+    std::uint64_t stochastic_seed = 1;
 
     std::vector<std::string> assumptions;  ///< stated assumptions, carried to the outputs
     std::vector<std::string> warnings;     ///< warnings met while preparing
