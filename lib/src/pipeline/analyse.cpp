@@ -227,6 +227,44 @@ AnalysisResult analyse(const PreparedModel& model) {
     const CurvesPtr& pooled_curves = curves[pooled_index];
     const double lambda0 = out.pooled().lambda;
 
+    // Year-to-year decomposition: each rate (and establishment) of a year swapped with the
+    // pooled one, forwards and backwards; the rest of Δλ is the interaction.
+    if (model.decompose_years) {
+        using Slot = BoundRate KernelRates::*;
+        const std::pair<const char*, Slot> slots[] = {
+            {"survival", &KernelRates::survival},   {"growth", &KernelRates::growth},
+            {"flowering", &KernelRates::flowering}, {"seeds", &KernelRates::seeds},
+            {"recruit_size", &KernelRates::recruit_size}};
+        const RecruitmentParameters pooled_r = baseline_recruitment(model, pooled_index);
+        for (std::size_t i = 0; i < model.years.size(); ++i) {
+            const KernelRates& year = model.years[i];
+            const RecruitmentParameters year_r = baseline_recruitment(model, i);
+            const double delta = out.kernels[i].lambda - lambda0;
+            double explained = 0.0;
+            auto push = [&](const char* component, double forward, double backward) {
+                const double c = 0.5 * ((forward - lambda0) + (out.kernels[i].lambda - backward));
+                explained += c;
+                out.year_contributions.push_back({year.label, component, c, delta});
+            };
+            for (const auto& [name, slot] : slots) {
+                KernelRates to_year = model.pooled, to_pooled = year;
+                to_year.*slot = pin_year(year.*slot, year.label);
+                to_pooled.*slot = pin_year(model.pooled.*slot, model.pooled.label);
+                push(name,
+                     lambda_of(mesh, evaluate_rates(to_year, model.layout, mesh.points()),
+                               pooled_r, eviction),
+                     lambda_of(mesh, evaluate_rates(to_pooled, model.layout, mesh.points()),
+                               year_r, eviction));
+            }
+            RecruitmentParameters e_year = pooled_r, e_pooled = year_r;
+            e_year.establishment = year_r.establishment;
+            e_pooled.establishment = pooled_r.establishment;
+            push("establishment", lambda_of(mesh, pooled_curves, e_year, eviction),
+                 lambda_of(mesh, curves[i], e_pooled, eviction));
+            out.year_contributions.push_back({year.label, "interaction", delta - explained, delta});
+        }
+    }
+
     // Stochastic growth: the census years' kernels drawn at random, each equally likely.
     if (model.stochastic_years > 0 && model.years.size() >= 2) {
         std::vector<std::unique_ptr<kernel::KernelOperator>> ops;

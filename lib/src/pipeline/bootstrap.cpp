@@ -162,6 +162,7 @@ std::vector<double> replicate(const Context& ctx, std::size_t r, std::uint64_t s
     m.mesh_check = false;
     m.survival_changes.clear();
     m.stochastic_years = 0;
+    m.decompose_years = false;
     const AnalysisResult a = analyse(m);
 
     std::map<std::string, double> got;

@@ -19,4 +19,22 @@ stats::Table covariate_table(const KernelLayout& layout, const Eigen::VectorXd& 
     return table;
 }
 
+namespace {
+TablePrediction pinned(TablePrediction f, const std::string& label) {
+    if (!f) return f;
+    return [f = std::move(f), label](const stats::Table& table) {
+        stats::Table at = table;
+        std::vector<std::string> levels = table.categorical("year").levels;
+        if (std::find(levels.begin(), levels.end(), label) == levels.end())
+            levels.push_back(label);
+        at.add_categorical("year", std::vector<std::string>(table.rows(), label), levels);
+        return f(at);
+    };
+}
+}  // namespace
+
+BoundRate pin_year(const BoundRate& rate, const std::string& label) {
+    return {pinned(rate.mean, label), pinned(rate.sd, label)};
+}
+
 }  // namespace safesite::pipeline

@@ -166,6 +166,13 @@ TidyTable assumptions_table(const AnalysisResult& r) {
 
 }  // namespace
 
+TidyTable decomposition_table(const AnalysisResult& r) {
+    TidyTable t{"year_decomposition", {"kernel", "component", "contribution", "delta_lambda"}, {}};
+    for (const auto& c : r.year_contributions)
+        t.rows.push_back({txt(c.year), txt(c.component), num(c.contribution), num(c.delta_lambda)});
+    return t;
+}
+
 TidyTable stochastic_table(const AnalysisResult& r) {
     TidyTable t{"stochastic_lambda",
                 {"environment", "kernels", "years", "log_lambda", "lambda", "std_error", "seed"},
@@ -181,7 +188,8 @@ TidyTable stochastic_table(const AnalysisResult& r) {
 }
 
 std::vector<report::TidyTable> analysis_tables(const AnalysisResult& result) {
-    return {lambda_table(result),       stochastic_table(result), perturbation_table(result),
+    return {lambda_table(result),       stochastic_table(result), decomposition_table(result),
+            perturbation_table(result),
             structure_table(result, false), structure_table(result, true),
             arrival_table(result),      scenario_table(result),
             sensitivity_table(result),  break_even_table(result),

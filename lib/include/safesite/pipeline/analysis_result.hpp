@@ -78,6 +78,17 @@ struct ScenarioResult {
     std::vector<double> delta_years;
 };
 
+/// One component of a census year's departure from the pooled λ (docs/methods/pipeline.md,
+/// "Year-to-year decomposition"): the symmetric one-at-a-time substitution
+/// C_r = ½[(λ(pooled with r of the year) − λ_pooled) + (λ_year − λ(year with r pooled))].
+struct YearContribution {
+    std::string year;       ///< census year label t
+    std::string component;  ///< survival | growth | flowering | seeds | recruit_size |
+                            ///< establishment | interaction (the remainder)
+    double contribution = 0.0;  ///< C_r; Σ over components (interaction included) = Δλ
+    double delta_lambda = 0.0;  ///< λ_year − λ_pooled
+};
+
 /// Sensitivity and elasticity of the pooled λ to one parameter.
 struct ParameterSensitivity {
     std::string parameter;     ///< arrival | establishment | cover | hazard | juvenile_survival
@@ -116,6 +127,9 @@ struct AnalysisResult {
     std::vector<ScenarioResult> scenarios;
     std::vector<ParameterSensitivity> sensitivities;
     std::vector<BreakEvenResult> break_even;
+    /// Year-to-year decomposition of λ_year − λ_pooled by vital rate (PreparedModel::
+    /// decompose_years), census years in order, components in the order of YearContribution.
+    std::vector<YearContribution> year_contributions;
     /// With two or more year kernels and PreparedModel::stochastic_years > 0.
     std::optional<StochasticResult> stochastic;
     std::vector<std::string> assumptions;

@@ -85,4 +85,9 @@ struct KernelLayout {
 stats::Table covariate_table(const KernelLayout& layout, const Eigen::VectorXd& sizes,
                              std::size_t microsite, bool seedling, const std::string& year);
 
+/// The rate as it predicts in kernel `label`, wherever it is used: the `year` column of the
+/// covariate table is set to `label` before predicting (rates with year effects read it). Used
+/// to put one year's rate into another kernel (the year-to-year decomposition).
+BoundRate pin_year(const BoundRate& rate, const std::string& label);
+
 }  // namespace safesite::pipeline

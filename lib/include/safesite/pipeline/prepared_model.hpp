@@ -72,6 +72,8 @@ struct PreparedModel {
     bool break_even = true;
     /// Check mesh convergence by rebuilding every kernel with 2n points.
     bool mesh_check = true;
+    /// Decompose each census year's λ − pooled λ by vital rate (symmetric substitution).
+    bool decompose_years = true;
     /// Years simulated for the stochastic growth rate of the year kernels (0: not computed;
     /// needs two or more census years), and the seed of the year draws.
     std::size_t stochastic_years = 20000;
