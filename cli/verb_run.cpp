@@ -9,6 +9,7 @@
 #include "common.hpp"
 #include "safesite/pipeline/bootstrap.hpp"
 #include "safesite/pipeline/run.hpp"
+#include "safesite/report/figures.hpp"
 #include "safesite/report/output_folder.hpp"
 #include "safesite/report/text_summary.hpp"
 #include "verbs.hpp"
@@ -58,7 +59,8 @@ int run_run(const RunOptions& o, const Streams& io) {
         run_info("run", o.model, model, seed, result.analysis.assumptions, warnings);
     const std::filesystem::path dir = output_dir(o.out, model);
     progress(io, "writing " + dir.string());
-    const auto written = report::write_output_folder(dir, tables, info);
+    auto written = report::write_output_folder(dir, tables, info);
+    for (auto& p : report::write_figures(dir, tables)) written.push_back(std::move(p));
     report::TextOptions text;
     text.max_rows = 40;
     // The terminal shows the scenarios of the pooled kernel; every year is in the files.

@@ -1,0 +1,151 @@
+#pragma once
+/// \file svg_chart.hpp
+/// A small builder of standalone SVG 1.1 charts (design.md section 6, "figures"): two axes,
+/// each linear (ticks by the nice-numbers rule, Heckbert1990) or categorical (one band per
+/// label); points, lines, interval whiskers, horizontal bars, shaded bands, reference lines,
+/// a legend, a title and a caption under the plot. The output is plain text: no scripts, no
+/// external fonts, images or style sheets, so a file opens offline in any browser.
+///
+/// Marks are given in data coordinates and kept until to_svg() lays the chart out; a
+/// categorical coordinate is the label index i (0, 1, …), the band centre, and fractional
+/// values move within the band (grouped bars). A mark with a non-finite coordinate is
+/// skipped; a line is broken at non-finite points. Numbers are written with fixed short
+/// precision, so the same marks give byte-identical text on every run and machine.
+
+#include <cstddef>
+#include <string>
+#include <vector>
+
+namespace safesite::report {
+
+/// Ticks of a linear axis from the nice-numbers rule ("loose labelling", Heckbert1990):
+/// with \f$\mathrm{nice}(x)\f$ the number of the form \f$\{1, 2, 5, 10\} \cdot 10^k\f$
+/// nearest to x,
+/// \f$ r = \mathrm{nice}_{\ge}(hi - lo),\; d = \mathrm{nice}_{\approx}(r / (n - 1)),\;
+///     t_0 = \lfloor lo / d \rfloor d,\; t_{end} = \lceil hi / d \rceil d \f$,
+/// ticks \f$ t_0, t_0 + d, …, t_{end} \f$ (they enclose [lo, hi]).
+struct NiceTicks {
+    double step = 1.0;           ///< d, spacing between ticks (> 0)
+    std::vector<double> values;  ///< tick values, increasing; first <= lo, last >= hi
+    int decimals = 0;            ///< digits after the point needed to label them, max(−⌊log10 d⌋, 0)
+};
+
+/// Nice ticks enclosing [lo, hi] with about `target` ticks (2 <= target <= 20).
+/// A degenerate range (lo == hi) is widened to lo ± max(0.1 |lo|, 1) — common practice.
+/// Non-finite bounds give the ticks of [0, 1]. \pre lo <= hi.
+NiceTicks nice_ticks(double lo, double hi, int target = 5);
+
+/// The nice number of Heckbert1990: x > 0 rewritten as f · 10^k with 1 <= f < 10, f replaced
+/// by 1, 2, 5 or 10 — the nearest (round = true: f < 1.5 → 1, < 3 → 2, < 7 → 5, else 10) or
+/// the smallest not below f (round = false). Returns 0 for x <= 0 or non-finite x.
+double nice_number(double x, bool round);
+
+/// A number as short fixed-point text with `decimals` digits ("-0" never appears).
+std::string format_fixed(double value, int decimals);
+
+/// `text` escaped for SVG/XML character data and attribute values: & < > " ' become entities;
+/// control characters (below U+0020) become spaces.
+std::string xml_escape(const std::string& text);
+
+/// How a series shows in the legend.
+enum class Swatch { point, line, point_line, bar };
+
+/// Stroke pattern of a series' lines.
+enum class Dash { solid, dashed, dotted, dash_dot };
+
+/// A chart under construction; to_svg() renders it. Not thread-safe; cheap to copy.
+class SvgChart {
+public:
+    /// Fixed geometry in SVG user units (px). The plot area is the canvas less the margins;
+    /// the left margin grows for long labels of a categorical y axis, and the right margin
+    /// by the legend width when a series has a legend label.
+    struct Layout {
+        double width = 720.0;         ///< canvas width
+        double height = 440.0;        ///< canvas height, without the caption lines
+        double margin_left = 80.0;    ///< room for y tick labels and the y axis label
+        double margin_right = 28.0;
+        double margin_top = 56.0;     ///< room for the title
+        double margin_bottom = 64.0;  ///< room for x tick labels and the x axis label
+        double font_size = 13.0;      ///< tick and legend labels; title 1.3×, caption 0.95×
+        int target_ticks = 6;         ///< about this many ticks per linear axis
+    };
+
+    SvgChart(std::string title, std::string caption);
+    SvgChart(std::string title, std::string caption, Layout layout);
+
+    /// Text kept in the document's `<desc>` after the caption, not drawn (e.g. the caution).
+    void set_note(std::string note) { m_note = std::move(note); }
+    void set_x_label(std::string label) { m_x.label = std::move(label); }
+    void set_y_label(std::string label) { m_y.label = std::move(label); }
+    /// Make the axis categorical with these labels (index i at the centre of band i).
+    void set_x_categories(std::vector<std::string> labels);
+    /// Categorical y axis: label 0 at the top.
+    void set_y_categories(std::vector<std::string> labels);
+    /// Make a linear axis range include this value (e.g. 0 for bars, 1 for a probability).
+    void include_x(double value);
+    void include_y(double value);
+
+    /// A new series; its colour and marker come from its index (palette in the .cpp), its
+    /// lines are drawn with `dash`. An empty `legend` keeps it out of the legend. Returns the
+    /// series index.
+    std::size_t add_series(std::string legend, Swatch swatch, Dash dash = Dash::solid);
+
+    /// One point mark per finite (x[i], y[i]). \pre x.size() == y.size().
+    void add_points(std::size_t series, const std::vector<double>& x, const std::vector<double>& y);
+    /// A polyline through the finite points, broken where a point is not finite.
+    void add_line(std::size_t series, const std::vector<double>& x, const std::vector<double>& y);
+    /// An interval from (x0, y0) to (x1, y1) with end caps across it.
+    void add_whisker(std::size_t series, double x0, double y0, double x1, double y1);
+    /// A horizontal bar on a categorical y axis: from x = `from` to x = `to`, centred at
+    /// y = `category` (index, fractional allowed), `thickness` in band units (0 < t <= 1).
+    void add_hbar(std::size_t series, double category, double from, double to, double thickness);
+    /// A translucent band across the whole plot between y = lo and y = hi.
+    void add_band_y(std::size_t series, double lo, double hi);
+    /// A thin grey reference line across the plot at x = value (resp. y), labelled.
+    void add_reference_x(double value, std::string label);
+    void add_reference_y(double value, std::string label);
+
+    /// Marks drawn so far of the given kind ("point", "bar", "whisker", "line", "band",
+    /// "reference"), after non-finite ones were skipped.
+    std::size_t mark_count(const std::string& kind) const;
+
+    /// The chart as a standalone SVG 1.1 document (starts with `<svg`, ends with `</svg>\n`).
+    std::string to_svg() const;
+
+private:
+    struct Axis {
+        std::string label;
+        std::vector<std::string> categories;
+        bool categorical = false;
+        bool has_range = false;
+        double lo = 0.0;
+        double hi = 0.0;
+    };
+    struct Series {
+        std::string legend;
+        Swatch swatch = Swatch::point;
+        Dash dash = Dash::solid;
+    };
+    struct Mark {
+        enum class Kind { point, line, whisker, bar, band, ref_x, ref_y } kind = Kind::point;
+        std::size_t series = 0;
+        std::vector<double> x;  ///< data coordinates (bar: from, to; band: unused)
+        std::vector<double> y;  ///< (bar: category; band: lo, hi)
+        double size = 0.0;      ///< bar thickness
+        std::string label;      ///< reference lines
+    };
+
+    static void include(Axis& axis, double value);
+    void check_series(std::size_t series) const;
+
+    std::string m_title;
+    std::string m_caption;
+    std::string m_note;
+    Layout m_layout;
+    Axis m_x;
+    Axis m_y;
+    std::vector<Series> m_series;
+    std::vector<Mark> m_marks;
+};
+
+}  // namespace safesite::report

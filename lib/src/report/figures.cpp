@@ -1,0 +1,342 @@
+#include "safesite/report/figures.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <map>
+#include <numeric>
+#include <utility>
+
+#include <fmt/format.h>
+
+#include "safesite/error.hpp"
+#include "safesite/io/atomic_file.hpp"
+#include "safesite/report/caution.hpp"
+#include "safesite/report/svg_chart.hpp"
+
+namespace safesite::report {
+
+namespace {
+
+namespace fs = std::filesystem;
+
+constexpr double k_nan = std::numeric_limits<double>::quiet_NaN();
+
+/// The table of that name, or nullptr.
+const TidyTable* find_table(const std::vector<TidyTable>& tables, const std::string& name) {
+    for (const auto& t : tables) {
+        if (t.name == name) return &t;
+    }
+    return nullptr;
+}
+
+/// Column indices by name; nullopt when the table is absent, has no rows, or lacks a column.
+std::optional<std::vector<std::size_t>> columns(const TidyTable* table,
+                                                const std::vector<std::string>& names) {
+    if (table == nullptr || table->rows.empty()) return std::nullopt;
+    std::vector<std::size_t> idx;
+    for (const auto& n : names) {
+        const auto it = std::find(table->columns.begin(), table->columns.end(), n);
+        if (it == table->columns.end()) return std::nullopt;
+        idx.push_back(static_cast<std::size_t>(it - table->columns.begin()));
+    }
+    return idx;
+}
+
+/// A cell as a label, as written in the CSV ("2015", "pooled"; "" when missing).
+std::string label(const std::vector<Cell>& row, std::size_t column) {
+    return column < row.size() ? format_cell(row[column]) : std::string();
+}
+
+/// A cell as a number: decimals and integers; NaN for text and missing cells.
+double value(const std::vector<Cell>& row, std::size_t column) {
+    if (column >= row.size()) return k_nan;
+    if (const auto* d = std::get_if<double>(&row[column])) return *d;
+    if (const auto* i = std::get_if<std::int64_t>(&row[column])) return static_cast<double>(*i);
+    return k_nan;
+}
+
+/// Interval bounds of `intervals` rows of one quantity, by "kernel|target"; and the level.
+struct Intervals {
+    std::map<std::string, std::pair<double, double>> bounds;
+    double level = k_nan;
+    const std::pair<double, double>* find(const std::string& kernel,
+                                          const std::string& target) const {
+        const auto it = bounds.find(kernel + "|" + target);
+        return it == bounds.end() ? nullptr : &it->second;
+    }
+};
+
+Intervals read_intervals(const std::vector<TidyTable>& tables, const std::string& quantity) {
+    Intervals out;
+    const TidyTable* t = find_table(tables, "intervals");
+    const auto c = columns(t, {"quantity", "kernel", "target", "lower", "upper", "level"});
+    if (!c) return out;
+    for (const auto& row : t->rows) {
+        if (label(row, (*c)[0]) != quantity) continue;
+        const double lo = value(row, (*c)[3]), hi = value(row, (*c)[4]);
+        if (!std::isfinite(lo) || !std::isfinite(hi)) continue;
+        out.bounds[label(row, (*c)[1]) + "|" + label(row, (*c)[2])] = {lo, hi};
+        if (!std::isfinite(out.level)) out.level = value(row, (*c)[5]);
+    }
+    return out;
+}
+
+/// " Whiskers: 95 % bootstrap percentile intervals." (empty without intervals).
+std::string interval_note(const Intervals& iv, const std::string& what) {
+    if (iv.bounds.empty()) return {};
+    const std::string level =
+        std::isfinite(iv.level) ? fmt::format("{:g} % ", 100.0 * iv.level) : std::string();
+    return " " + what + ": " + level + "bootstrap percentile intervals.";
+}
+
+/// Labels in order of first appearance.
+void add_unique(std::vector<std::string>& list, const std::string& s) {
+    if (std::find(list.begin(), list.end(), s) == list.end()) list.push_back(s);
+}
+
+std::size_t index_of(const std::vector<std::string>& list, const std::string& s) {
+    return static_cast<std::size_t>(std::find(list.begin(), list.end(), s) - list.begin());
+}
+
+}  // namespace
+
+std::optional<Figure> lambda_by_year_figure(const std::vector<TidyTable>& tables) {
+    const TidyTable* t = find_table(tables, "lambda");
+    const auto c = columns(t, {"kernel", "lambda"});
+    if (!c) return std::nullopt;
+    std::vector<std::string> years;
+    std::vector<double> lambdas;
+    double pooled = k_nan;
+    for (const auto& row : t->rows) {
+        const std::string kernel = label(row, (*c)[0]);
+        if (kernel == "pooled") {
+            pooled = value(row, (*c)[1]);
+        } else {
+            years.push_back(kernel);
+            lambdas.push_back(value(row, (*c)[1]));
+        }
+    }
+    const bool any_year =
+        std::any_of(lambdas.begin(), lambdas.end(), [](double v) { return std::isfinite(v); });
+    if (!any_year && !std::isfinite(pooled)) return std::nullopt;
+    const Intervals iv = read_intervals(tables, "lambda");
+
+    SvgChart chart("Population growth rate \u03bb per census year",
+                   "Points: \u03bb of the kernel of census year t (t \u2192 t+1); dashed line: "
+                   "the pooled kernel; grey line: \u03bb = 1 (the population keeps its size)." +
+                       interval_note(iv, "Whiskers and band"));
+    chart.set_x_categories(years);
+    chart.set_x_label("census year t (kernel t \u2192 t+1)");
+    chart.set_y_label("\u03bb (per year)");
+    const std::size_t s_year = chart.add_series("census year", Swatch::point_line);
+    const std::size_t s_pooled = chart.add_series("pooled", Swatch::line, Dash::dashed);
+    const double n = static_cast<double>(std::max<std::size_t>(years.size(), 1));
+    if (const auto* b = iv.find("pooled", "")) chart.add_band_y(s_pooled, b->first, b->second);
+    chart.add_line(s_pooled, {-0.5, n - 0.5}, {pooled, pooled});
+    chart.add_reference_y(1.0, "\u03bb = 1");
+    std::vector<double> x(years.size());
+    std::iota(x.begin(), x.end(), 0.0);
+    chart.add_line(s_year, x, lambdas);
+    for (std::size_t i = 0; i < years.size(); ++i) {
+        if (const auto* b = iv.find(years[i], "")) {
+            chart.add_whisker(s_year, x[i], b->first, x[i], b->second);
+        }
+    }
+    chart.add_points(s_year, x, lambdas);
+    chart.set_note(k_caution);
+    return Figure{"lambda_by_year", chart.to_svg()};
+}
+
+std::optional<Figure> scenarios_figure(const std::vector<TidyTable>& tables) {
+    const TidyTable* t = find_table(tables, "scenarios");
+    const auto c = columns(t, {"scenario", "kernel", "delta_lambda"});
+    if (!c) return std::nullopt;
+    std::vector<std::string> names;
+    std::vector<double> deltas;
+    for (const auto& row : t->rows) {
+        if (label(row, (*c)[1]) != "pooled") continue;
+        names.push_back(label(row, (*c)[0]));
+        deltas.push_back(value(row, (*c)[2]));
+    }
+    if (names.empty()) return std::nullopt;
+    const Intervals iv = read_intervals(tables, "scenario_delta_lambda");
+
+    SvgChart chart("Change in pooled \u03bb under each scenario",
+                   "Bars: \u0394\u03bb = \u03bb under the scenario \u2212 baseline \u03bb, pooled "
+                   "kernel; bars right of the line raise \u03bb." +
+                       interval_note(iv, "Whiskers"));
+    chart.set_y_categories(names);
+    chart.set_x_label("\u0394\u03bb (pooled kernel)");
+    const std::size_t s = chart.add_series("", Swatch::bar);
+    chart.add_reference_x(0.0, "\u0394\u03bb = 0");
+    for (std::size_t i = 0; i < names.size(); ++i) {
+        const double y = static_cast<double>(i);
+        chart.add_hbar(s, y, 0.0, deltas[i], 0.55);
+        if (const auto* b = iv.find("pooled", names[i])) {
+            chart.add_whisker(s, b->first, y, b->second, y);
+        }
+    }
+    chart.set_note(k_caution);
+    return Figure{"scenarios", chart.to_svg()};
+}
+
+std::optional<Figure> retention_curves_figure(const std::vector<TidyTable>& tables) {
+    const TidyTable* t = find_table(tables, "retention_curve");
+    const auto c = columns(t, {"microsite", "seed_type", "day", "retained"});
+    if (!c) return std::nullopt;
+    // The focal seed type: from `hazards` (focal = 1), else the only seed type of the curves.
+    std::string focal;
+    bool found = false;
+    const TidyTable* h = find_table(tables, "hazards");
+    if (const auto hc = columns(h, {"seed_type", "focal"})) {
+        for (const auto& row : h->rows) {
+            if (value(row, (*hc)[1]) == 1.0) {
+                focal = label(row, (*hc)[0]);
+                found = true;
+                break;
+            }
+        }
+    }
+    if (!found) {
+        std::vector<std::string> types;
+        for (const auto& row : t->rows) add_unique(types, label(row, (*c)[1]));
+        if (types.size() != 1) return std::nullopt;
+        focal = types.front();
+    }
+    std::vector<std::string> sites;
+    std::map<std::string, std::vector<std::pair<double, double>>> curves;
+    for (const auto& row : t->rows) {
+        if (label(row, (*c)[1]) != focal) continue;
+        const std::string site = label(row, (*c)[0]);
+        add_unique(sites, site);
+        curves[site].emplace_back(value(row, (*c)[2]), value(row, (*c)[3]));
+    }
+    if (sites.empty()) return std::nullopt;
+
+    SvgChart chart("Seed retention by microsite, seed type \u201c" + focal + "\u201d",
+                   "R(t) = exp(\u2212h t): share of seeds still in place t days after placement "
+                   "(no re-landing), h the daily departure hazard of the retention model.");
+    chart.set_x_label("days since placement, t");
+    chart.set_y_label("share of seeds retained, R(t)");
+    chart.include_x(0.0);
+    chart.include_y(0.0);
+    chart.include_y(1.0);
+    constexpr Dash k_dashes[] = {Dash::solid, Dash::dashed, Dash::dotted, Dash::dash_dot};
+    for (std::size_t i = 0; i < sites.size(); ++i) {
+        auto points = curves[sites[i]];
+        std::stable_sort(points.begin(), points.end(),
+                         [](const auto& a, const auto& b) { return a.first < b.first; });
+        std::vector<double> x, y;
+        for (const auto& [d, r] : points) {
+            x.push_back(d);
+            y.push_back(r);
+        }
+        const std::size_t s = chart.add_series(sites[i], Swatch::line, k_dashes[i % 4]);
+        chart.add_line(s, x, y);
+    }
+    chart.set_note(k_caution);
+    return Figure{"retention_curves", chart.to_svg()};
+}
+
+std::optional<Figure> arrival_figure(const std::vector<TidyTable>& tables) {
+    const TidyTable* t = find_table(tables, "arrival");
+    const auto c = columns(t, {"scenario", "microsite", "fraction"});
+    if (!c) return std::nullopt;
+    std::vector<std::string> scenarios, sites;
+    for (const auto& row : t->rows) {
+        add_unique(scenarios, label(row, (*c)[0]));
+        add_unique(sites, label(row, (*c)[1]));
+    }
+    SvgChart::Layout layout;
+    layout.width = 800.0;  // room for a legend of scenario names
+    layout.height = std::max(440.0, 120.0 + 24.0 * static_cast<double>(sites.size() *
+                                                                        scenarios.size()));
+    SvgChart chart("Arrival fractions per microsite",
+                   "Share of all seeds produced that lie in each microsite at germination time, "
+                   "for the baseline and each scenario (the rest is lost).",
+                   layout);
+    chart.set_y_categories(sites);
+    chart.set_x_label("arrival fraction a\u2098");
+    chart.include_x(0.0);
+    std::vector<std::size_t> series;
+    for (const auto& s : scenarios) series.push_back(chart.add_series(s, Swatch::bar));
+    // Bars of one microsite share 80 % of its band, in legend order from the top.
+    const double k = static_cast<double>(scenarios.size());
+    const double thickness = 0.8 / k;
+    for (const auto& row : t->rows) {
+        const std::size_t j = index_of(scenarios, label(row, (*c)[0]));
+        const double m = static_cast<double>(index_of(sites, label(row, (*c)[1])));
+        const double centre = m - 0.4 + (static_cast<double>(j) + 0.5) * thickness;
+        chart.add_hbar(series[j], centre, 0.0, value(row, (*c)[2]), thickness * 0.92);
+    }
+    chart.set_note(k_caution);
+    return Figure{"arrival", chart.to_svg()};
+}
+
+std::optional<Figure> perturbation_figure(const std::vector<TidyTable>& tables) {
+    const TidyTable* t = find_table(tables, "perturbation");
+    const auto c = columns(t, {"kernel", "change", "lambda"});
+    if (!c) return std::nullopt;
+    std::vector<std::pair<double, double>> points;
+    for (const auto& row : t->rows) {
+        if (label(row, (*c)[0]) != "pooled") continue;
+        points.emplace_back(100.0 * value(row, (*c)[1]), value(row, (*c)[2]));
+    }
+    if (points.empty()) return std::nullopt;
+    std::stable_sort(points.begin(), points.end(),
+                     [](const auto& a, const auto& b) { return a.first < b.first; });
+    std::vector<double> x, y;
+    for (const auto& [d, l] : points) {
+        x.push_back(d);
+        y.push_back(l);
+    }
+    SvgChart chart("Pooled \u03bb under a change in juvenile survival",
+                   "\u03bb of the pooled kernel when juvenile survival s_J becomes "
+                   "min(1, (1 + \u03b4) s_J); grey lines: \u03bb = 1 and no change.");
+    chart.set_x_label("change \u03b4 in juvenile survival (%)");
+    chart.set_y_label("pooled \u03bb (per year)");
+    const std::size_t s = chart.add_series("", Swatch::point_line);
+    chart.add_reference_y(1.0, "\u03bb = 1");
+    chart.add_reference_x(0.0, "no change");
+    chart.add_line(s, x, y);
+    chart.add_points(s, x, y);
+    chart.set_note(k_caution);
+    return Figure{"perturbation", chart.to_svg()};
+}
+
+std::vector<Figure> all_figures(const std::vector<TidyTable>& tables) {
+    std::vector<Figure> out;
+    for (auto* make : {&lambda_by_year_figure, &scenarios_figure, &retention_curves_figure,
+                       &arrival_figure, &perturbation_figure}) {
+        if (auto f = make(tables)) out.push_back(std::move(*f));
+    }
+    return out;
+}
+
+std::vector<fs::path> write_figures(const fs::path& dir, const std::vector<TidyTable>& tables) {
+    // Draw everything first, so that nothing is written when drawing fails.
+    const std::vector<Figure> figures = all_figures(tables);
+    std::vector<fs::path> written;
+    if (figures.empty()) return written;
+    const fs::path folder = dir / "figures";
+    // io's errors become input errors naming the path and the key "out", as for the tables.
+    auto as_input_error = [](const fs::path& p, auto&& action) {
+        try {
+            action();
+        } catch (const InputError&) {
+            throw;
+        } catch (const Error& e) {
+            throw InputError({p.string(), 0, 0, "out"}, e.what());
+        }
+    };
+    as_input_error(folder, [&] { io::ensure_directory(folder); });
+    for (const auto& f : figures) {
+        const fs::path p = folder / (f.name + ".svg");
+        as_input_error(p, [&] { io::write_file_atomic(p, f.svg); });
+        written.push_back(p);
+    }
+    return written;
+}
+
+}  // namespace safesite::report

@@ -1,0 +1,665 @@
+#include "safesite/report/svg_chart.hpp"
+
+#include <algorithm>
+#include <cassert>
+#include <cmath>
+#include <utility>
+
+#include <fmt/format.h>
+
+namespace safesite::report {
+
+namespace {
+
+// Series colours, chosen for safesite. Two dark and two light tones; each dark/light pair
+// differs along the blue–yellow opponent axis, which the common colour-vision deficiencies
+// (protanopia, deuteranopia) keep, and dark vs light (CIE L* about 34 vs 67, computed from
+// the sRGB values) keeps the series apart in greyscale print and for tritanopes. Series also
+// differ by marker shape (and lines by dash where it matters), so colour is never the only cue.
+constexpr const char* k_palette[] = {
+    "#1c4f8c",  // deep blue, L* 33.4
+    "#e0952b",  // amber,     L* 67.7
+    "#6aa6d8",  // sky,       L* 66.0
+    "#8a3b12",  // rust,      L* 35.2
+};
+constexpr std::size_t k_palette_size = sizeof(k_palette) / sizeof(k_palette[0]);
+constexpr const char* k_ink = "#222222";        // text and axes
+constexpr const char* k_reference = "#555555";  // reference lines and their labels
+constexpr const char* k_grid = "#e4e4e4";       // grid lines at the ticks of a linear axis
+
+const char* colour_of(std::size_t series) { return k_palette[series % k_palette_size]; }
+
+/// The stroke-dasharray attribute of a dash pattern (empty for solid lines).
+const char* dash_attribute(Dash dash) {
+    switch (dash) {
+        case Dash::dashed: return " stroke-dasharray=\"7 4\"";
+        case Dash::dotted: return " stroke-dasharray=\"2 3\"";
+        case Dash::dash_dot: return " stroke-dasharray=\"8 3 2 3\"";
+        case Dash::solid: break;
+    }
+    return "";
+}
+
+/// Coordinates in px with two decimals: enough for any screen, short, and reproducible.
+std::string px(double v) { return format_fixed(v, 2); }
+
+/// Code points of UTF-8 text (continuation bytes 10xxxxxx are not counted).
+std::size_t text_length(const std::string& s) {
+    std::size_t n = 0;
+    for (unsigned char c : s) {
+        if ((c & 0xC0u) != 0x80u) ++n;
+    }
+    return n;
+}
+
+/// Estimated width of text in a sans-serif font: 0.56 em per character on average
+/// (common practice for layout without font metrics; a little generous for digits).
+double text_width(const std::string& s, double font_size) {
+    return 0.56 * font_size * static_cast<double>(text_length(s));
+}
+
+/// Shorten text to at most `max` code points, ending in "…" when cut.
+std::string shorten(const std::string& s, std::size_t max) {
+    if (text_length(s) <= max) return s;
+    std::string out;
+    std::size_t n = 0;
+    for (std::size_t i = 0; i < s.size(); ++i) {
+        const auto c = static_cast<unsigned char>(s[i]);
+        if ((c & 0xC0u) != 0x80u) {
+            if (n == max - 1) break;
+            ++n;
+        }
+        out += s[i];
+    }
+    return out + "\u2026";
+}
+
+/// Greedy word wrap into lines of at most `width` code points (a longer word stays whole).
+std::vector<std::string> wrap(const std::string& text, std::size_t width) {
+    std::vector<std::string> lines;
+    std::string line;
+    std::size_t start = 0;
+    while (start <= text.size()) {
+        std::size_t end = text.find(' ', start);
+        if (end == std::string::npos) end = text.size();
+        const std::string word = text.substr(start, end - start);
+        if (!word.empty()) {
+            if (!line.empty() && text_length(line) + 1 + text_length(word) > width) {
+                lines.push_back(line);
+                line.clear();
+            }
+            if (!line.empty()) line += ' ';
+            line += word;
+        }
+        start = end + 1;
+    }
+    if (!line.empty()) lines.push_back(line);
+    return lines;
+}
+
+bool finite(double v) { return std::isfinite(v); }
+
+/// The resolved axis: data range [lo, hi] mapped onto the pixel range [p0, p1].
+struct Scale {
+    bool categorical = false;
+    double lo = 0.0, hi = 1.0;  // linear: first and last tick; categorical: −0.5, n − 0.5
+    double p0 = 0.0, p1 = 1.0;  // pixel positions of lo and hi
+    NiceTicks ticks;
+    double operator()(double v) const { return p0 + (v - lo) / (hi - lo) * (p1 - p0); }
+};
+
+}  // namespace
+
+double nice_number(double x, bool round) {
+    if (!(x > 0.0) || !std::isfinite(x)) return 0.0;
+    const double exponent = std::floor(std::log10(x));
+    const double power = std::pow(10.0, exponent);
+    const double f = x / power;  // 1 <= f < 10 (up to rounding)
+    double nice = 10.0;
+    if (round) {
+        if (f < 1.5) nice = 1.0;
+        else if (f < 3.0) nice = 2.0;
+        else if (f < 7.0) nice = 5.0;
+    } else {
+        if (f <= 1.0) nice = 1.0;
+        else if (f <= 2.0) nice = 2.0;
+        else if (f <= 5.0) nice = 5.0;
+    }
+    return nice * power;
+}
+
+NiceTicks nice_ticks(double lo, double hi, int target) {
+    assert(target >= 2 && target <= 20);
+    if (!std::isfinite(lo) || !std::isfinite(hi)) {
+        lo = 0.0;
+        hi = 1.0;
+    }
+    assert(lo <= hi);
+    if (hi - lo <= 0.0) {
+        const double pad = std::max(0.1 * std::fabs(lo), 1.0);
+        lo -= pad;
+        hi += pad;
+    }
+    // Heckbert1990, "loose labelling": a nice range, then a nice step rounded from
+    // range / (ticks − 1), then the multiples of the step enclosing the data.
+    NiceTicks t;
+    const double range = nice_number(hi - lo, false);
+    t.step = nice_number(range / (target - 1), true);
+    // A tiny allowance so that lo = 0.3 with step 0.1 does not fall below 3 by rounding.
+    const double eps = 1e-9;
+    const double first = std::floor(lo / t.step + eps);
+    const double last = std::ceil(hi / t.step - eps);
+    for (double k = first; k <= last + 0.5; k += 1.0) t.values.push_back(k * t.step);
+    t.decimals = std::max(-static_cast<int>(std::floor(std::log10(t.step) + eps)), 0);
+    return t;
+}
+
+std::string format_fixed(double value, int decimals) {
+    std::string s = fmt::format("{:.{}f}", value, std::max(decimals, 0));
+    // "-0", "-0.00": a rounded negative zero prints without its sign.
+    if (s[0] == '-' && s.find_first_not_of("-0.") == std::string::npos) s.erase(0, 1);
+    return s;
+}
+
+std::string xml_escape(const std::string& text) {
+    std::string out;
+    out.reserve(text.size());
+    for (char c : text) {
+        switch (c) {
+            case '&': out += "&amp;"; break;
+            case '<': out += "&lt;"; break;
+            case '>': out += "&gt;"; break;
+            case '"': out += "&quot;"; break;
+            case '\'': out += "&#39;"; break;
+            default:
+                if (static_cast<unsigned char>(c) < 0x20u) {
+                    out += ' ';
+                } else {
+                    out += c;
+                }
+        }
+    }
+    return out;
+}
+
+SvgChart::SvgChart(std::string title, std::string caption)
+    : SvgChart(std::move(title), std::move(caption), Layout{}) {}
+
+SvgChart::SvgChart(std::string title, std::string caption, Layout layout)
+    : m_title(std::move(title)), m_caption(std::move(caption)), m_layout(layout) {}
+
+void SvgChart::set_x_categories(std::vector<std::string> labels) {
+    m_x.categorical = true;
+    m_x.categories = std::move(labels);
+}
+
+void SvgChart::set_y_categories(std::vector<std::string> labels) {
+    m_y.categorical = true;
+    m_y.categories = std::move(labels);
+}
+
+void SvgChart::include(Axis& axis, double value) {
+    if (!finite(value)) return;
+    if (!axis.has_range) {
+        axis.lo = axis.hi = value;
+        axis.has_range = true;
+    } else {
+        axis.lo = std::min(axis.lo, value);
+        axis.hi = std::max(axis.hi, value);
+    }
+}
+
+void SvgChart::include_x(double value) { include(m_x, value); }
+void SvgChart::include_y(double value) { include(m_y, value); }
+
+void SvgChart::check_series(std::size_t series) const {
+    assert(series < m_series.size());
+    (void)series;
+}
+
+std::size_t SvgChart::add_series(std::string legend, Swatch swatch, Dash dash) {
+    m_series.push_back({std::move(legend), swatch, dash});
+    return m_series.size() - 1;
+}
+
+void SvgChart::add_points(std::size_t series, const std::vector<double>& x,
+                          const std::vector<double>& y) {
+    check_series(series);
+    assert(x.size() == y.size());
+    for (std::size_t i = 0; i < x.size() && i < y.size(); ++i) {
+        if (!finite(x[i]) || !finite(y[i])) continue;
+        m_marks.push_back({Mark::Kind::point, series, {x[i]}, {y[i]}, 0.0, {}});
+        include(m_x, x[i]);
+        include(m_y, y[i]);
+    }
+}
+
+void SvgChart::add_line(std::size_t series, const std::vector<double>& x,
+                        const std::vector<double>& y) {
+    check_series(series);
+    assert(x.size() == y.size());
+    Mark run{Mark::Kind::line, series, {}, {}, 0.0, {}};
+    auto flush = [&] {
+        if (run.x.size() >= 2) m_marks.push_back(run);
+        run.x.clear();
+        run.y.clear();
+    };
+    for (std::size_t i = 0; i < x.size() && i < y.size(); ++i) {
+        if (!finite(x[i]) || !finite(y[i])) {
+            flush();
+            continue;
+        }
+        run.x.push_back(x[i]);
+        run.y.push_back(y[i]);
+        include(m_x, x[i]);
+        include(m_y, y[i]);
+    }
+    flush();
+}
+
+void SvgChart::add_whisker(std::size_t series, double x0, double y0, double x1, double y1) {
+    check_series(series);
+    if (!finite(x0) || !finite(y0) || !finite(x1) || !finite(y1)) return;
+    m_marks.push_back({Mark::Kind::whisker, series, {x0, x1}, {y0, y1}, 0.0, {}});
+    include(m_x, x0);
+    include(m_x, x1);
+    include(m_y, y0);
+    include(m_y, y1);
+}
+
+void SvgChart::add_hbar(std::size_t series, double category, double from, double to,
+                        double thickness) {
+    check_series(series);
+    assert(thickness > 0.0 && thickness <= 1.0);
+    if (!finite(category) || !finite(from) || !finite(to)) return;
+    m_marks.push_back({Mark::Kind::bar, series, {from, to}, {category}, thickness, {}});
+    include(m_x, from);
+    include(m_x, to);
+}
+
+void SvgChart::add_band_y(std::size_t series, double lo, double hi) {
+    check_series(series);
+    if (!finite(lo) || !finite(hi)) return;
+    m_marks.push_back({Mark::Kind::band, series, {}, {lo, hi}, 0.0, {}});
+    include(m_y, lo);
+    include(m_y, hi);
+}
+
+void SvgChart::add_reference_x(double value, std::string label) {
+    if (!finite(value)) return;
+    m_marks.push_back({Mark::Kind::ref_x, 0, {value}, {}, 0.0, std::move(label)});
+    include(m_x, value);
+}
+
+void SvgChart::add_reference_y(double value, std::string label) {
+    if (!finite(value)) return;
+    m_marks.push_back({Mark::Kind::ref_y, 0, {}, {value}, 0.0, std::move(label)});
+    include(m_y, value);
+}
+
+std::size_t SvgChart::mark_count(const std::string& kind) const {
+    std::size_t n = 0;
+    for (const auto& m : m_marks) {
+        const char* k = "";
+        switch (m.kind) {
+            case Mark::Kind::point: k = "point"; break;
+            case Mark::Kind::line: k = "line"; break;
+            case Mark::Kind::whisker: k = "whisker"; break;
+            case Mark::Kind::bar: k = "bar"; break;
+            case Mark::Kind::band: k = "band"; break;
+            case Mark::Kind::ref_x:
+            case Mark::Kind::ref_y: k = "reference"; break;
+        }
+        if (kind == k) ++n;
+    }
+    return n;
+}
+
+std::string SvgChart::to_svg() const {
+    const Layout& L = m_layout;
+    const double fs = L.font_size;
+    const double title_fs = 1.3 * fs;
+    const double caption_fs = 0.95 * fs;
+    constexpr std::size_t k_max_label = 36;  // code points of a category label
+
+    // 1. Scales: nice ticks for linear axes, bands for categorical ones.
+    auto resolve = [&](const Axis& a) {
+        Scale s;
+        s.categorical = a.categorical;
+        if (a.categorical) {
+            s.lo = -0.5;
+            s.hi = static_cast<double>(std::max<std::size_t>(a.categories.size(), 1)) - 0.5;
+        } else {
+            s.ticks = a.has_range ? nice_ticks(a.lo, a.hi, L.target_ticks)
+                                  : nice_ticks(0.0, 1.0, L.target_ticks);
+            s.lo = s.ticks.values.front();
+            s.hi = s.ticks.values.back();
+        }
+        return s;
+    };
+    Scale sx = resolve(m_x);
+    Scale sy = resolve(m_y);
+
+    // 2. Margins: category labels of a y axis, the legend, rotated x labels, the caption.
+    double left = L.margin_left;
+    if (m_y.categorical) {
+        double w = 0.0;
+        for (const auto& c : m_y.categories) w = std::max(w, text_width(shorten(c, k_max_label), fs));
+        left = std::max(left, w + 20.0 + (m_y.label.empty() ? 0.0 : 1.6 * fs));
+    }
+    double legend_width = 0.0;
+    std::vector<std::size_t> legend;
+    for (std::size_t i = 0; i < m_series.size(); ++i) {
+        if (m_series[i].legend.empty()) continue;
+        legend.push_back(i);
+        legend_width = std::max(legend_width, text_width(m_series[i].legend, fs) + 40.0);
+    }
+    const double right = L.margin_right + (legend.empty() ? 0.0 : legend_width + 8.0);
+    const double plot_w = std::max(L.width - left - right, 40.0);
+    bool rotate_x = false;
+    double bottom = L.margin_bottom;
+    if (m_x.categorical && !m_x.categories.empty()) {
+        double w = 0.0;
+        for (const auto& c : m_x.categories) w = std::max(w, text_width(shorten(c, k_max_label), fs));
+        const double band = plot_w / static_cast<double>(m_x.categories.size());
+        if (w > 0.9 * band) {
+            rotate_x = true;
+            bottom += 0.7 * w;  // sin 40° ≈ 0.64, plus room
+        }
+    }
+    const double plot_left = left;
+    const double plot_top = L.margin_top;
+    const double plot_h = std::max(L.height - L.margin_top - L.margin_bottom, 40.0);
+    const double plot_bottom = plot_top + plot_h;
+    const double plot_right = plot_left + plot_w;
+    sx.p0 = plot_left;
+    sx.p1 = plot_right;
+    if (sy.categorical) {  // label 0 at the top
+        sy.p0 = plot_top;
+        sy.p1 = plot_bottom;
+    } else {
+        sy.p0 = plot_bottom;
+        sy.p1 = plot_top;
+    }
+    const double caption_line = 1.35 * caption_fs;
+    const auto caption_chars = static_cast<std::size_t>(
+        std::max((L.width - 32.0) / (0.56 * caption_fs), 20.0));
+    const std::vector<std::string> caption = wrap(m_caption, caption_chars);
+    const double x_labels_bottom = plot_bottom + bottom;
+    const double height = x_labels_bottom + 8.0 + caption_line * static_cast<double>(caption.size());
+
+    std::string o;
+    o.reserve(16384);
+    o += fmt::format(
+        "<svg xmlns=\"http://www.w3.org/2000/svg\" version=\"1.1\" width=\"{0}\" height=\"{1}\" "
+        "viewBox=\"0 0 {0} {1}\" font-family=\"sans-serif\" font-size=\"{2}\" fill=\"{3}\">\n",
+        px(L.width), px(height), px(fs), k_ink);
+    o += "<title>" + xml_escape(m_title) + "</title>\n";
+    o += "<desc>" + xml_escape(m_note.empty() ? m_caption : m_caption + " " + m_note) +
+         "</desc>\n";
+    o += fmt::format("<rect class=\"background\" x=\"0\" y=\"0\" width=\"{}\" height=\"{}\" "
+                     "fill=\"#ffffff\"/>\n",
+                     px(L.width), px(height));
+
+    // 3. Grid lines at the ticks of the linear axes.
+    o += fmt::format("<g class=\"grid\" stroke=\"{}\" stroke-width=\"1\">\n", k_grid);
+    if (!sx.categorical) {
+        for (double t : sx.ticks.values) {
+            o += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\"/>\n", px(sx(t)),
+                             px(plot_top), px(plot_bottom));
+        }
+    }
+    if (!sy.categorical) {
+        for (double t : sy.ticks.values) {
+            o += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\"/>\n", px(plot_left),
+                             px(sy(t)), px(plot_right));
+        }
+    }
+    o += "</g>\n";
+
+    // 4. Marks, back to front: bands, reference lines, bars, lines, whiskers, points.
+    auto draw = [&](Mark::Kind kind) {
+        for (const auto& m : m_marks) {
+            if (m.kind != kind) continue;
+            const char* c = colour_of(m.series);
+            switch (m.kind) {
+                case Mark::Kind::band: {
+                    const double a = sy(m.y[0]), b = sy(m.y[1]);
+                    o += fmt::format("<rect class=\"band\" x=\"{}\" y=\"{}\" width=\"{}\" "
+                                     "height=\"{}\" fill=\"{}\" fill-opacity=\"0.18\"/>\n",
+                                     px(plot_left), px(std::min(a, b)), px(plot_w),
+                                     px(std::fabs(a - b)), c);
+                    break;
+                }
+                case Mark::Kind::ref_x: {
+                    const double x = sx(m.x[0]);
+                    o += fmt::format("<line class=\"reference\" x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" "
+                                     "y2=\"{2}\" stroke=\"{3}\" stroke-width=\"1.2\"/>\n",
+                                     px(x), px(plot_top), px(plot_bottom), k_reference);
+                    if (!m.label.empty()) {
+                        o += fmt::format("<text x=\"{}\" y=\"{}\" fill=\"{}\">{}</text>\n",
+                                         px(x + 4.0), px(plot_top + fs), k_reference,
+                                         xml_escape(m.label));
+                    }
+                    break;
+                }
+                case Mark::Kind::ref_y: {
+                    const double y = sy(m.y[0]);
+                    o += fmt::format("<line class=\"reference\" x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" "
+                                     "y2=\"{1}\" stroke=\"{3}\" stroke-width=\"1.2\"/>\n",
+                                     px(plot_left), px(y), px(plot_right), k_reference);
+                    if (!m.label.empty()) {
+                        o += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"end\" "
+                                         "fill=\"{}\">{}</text>\n",
+                                         px(plot_right - 4.0), px(y - 4.0), k_reference,
+                                         xml_escape(m.label));
+                    }
+                    break;
+                }
+                case Mark::Kind::bar: {
+                    const double band = std::fabs(sy(1.0) - sy(0.0));
+                    const double h = m.size * band;
+                    const double xa = sx(m.x[0]), xb = sx(m.x[1]);
+                    o += fmt::format("<rect class=\"bar\" x=\"{}\" y=\"{}\" width=\"{}\" "
+                                     "height=\"{}\" fill=\"{}\"/>\n",
+                                     px(std::min(xa, xb)), px(sy(m.y[0]) - h / 2.0),
+                                     px(std::fabs(xb - xa)), px(h), c);
+                    break;
+                }
+                case Mark::Kind::line: {
+                    std::string points;
+                    for (std::size_t i = 0; i < m.x.size(); ++i) {
+                        if (i > 0) points += ' ';
+                        points += px(sx(m.x[i])) + "," + px(sy(m.y[i]));
+                    }
+                    o += fmt::format("<polyline class=\"line\" points=\"{}\" fill=\"none\" "
+                                     "stroke=\"{}\" stroke-width=\"2\"{}/>\n",
+                                     points, c, dash_attribute(m_series[m.series].dash));
+                    break;
+                }
+                case Mark::Kind::whisker: {
+                    const double x0 = sx(m.x[0]), y0 = sy(m.y[0]);
+                    const double x1 = sx(m.x[1]), y1 = sy(m.y[1]);
+                    const bool vertical = std::fabs(x1 - x0) < std::fabs(y1 - y0);
+                    const double cx = vertical ? 5.0 : 0.0, cy = vertical ? 0.0 : 5.0;
+                    o += fmt::format(
+                        "<path class=\"whisker\" d=\"M{},{} L{},{} M{},{} L{},{} M{},{} L{},{}\" "
+                        "fill=\"none\" stroke=\"{}\" stroke-width=\"1.5\"/>\n",
+                        px(x0), px(y0), px(x1), px(y1), px(x0 - cx), px(y0 - cy), px(x0 + cx),
+                        px(y0 + cy), px(x1 - cx), px(y1 - cy), px(x1 + cx), px(y1 + cy),
+                        // On a bar, a whisker in the bar's colour would vanish: use ink.
+                        m_series[m.series].swatch == Swatch::bar ? k_ink : c);
+                    break;
+                }
+                case Mark::Kind::point: {
+                    const double x = sx(m.x[0]), y = sy(m.y[0]);
+                    const char* style = " stroke=\"#ffffff\" stroke-width=\"1\"";
+                    switch (m.series % 4) {
+                        case 0:
+                            o += fmt::format("<circle class=\"point\" cx=\"{}\" cy=\"{}\" r=\"4.5\" "
+                                             "fill=\"{}\"{}/>\n",
+                                             px(x), px(y), c, style);
+                            break;
+                        case 1:
+                            o += fmt::format("<rect class=\"point\" x=\"{}\" y=\"{}\" width=\"8\" "
+                                             "height=\"8\" fill=\"{}\"{}/>\n",
+                                             px(x - 4.0), px(y - 4.0), c, style);
+                            break;
+                        case 2:
+                            o += fmt::format("<polygon class=\"point\" points=\"{},{} {},{} {},{}\" "
+                                             "fill=\"{}\"{}/>\n",
+                                             px(x), px(y - 5.5), px(x + 5.0), px(y + 3.5),
+                                             px(x - 5.0), px(y + 3.5), c, style);
+                            break;
+                        default:
+                            o += fmt::format("<polygon class=\"point\" points=\"{},{} {},{} {},{} "
+                                             "{},{}\" fill=\"{}\"{}/>\n",
+                                             px(x), px(y - 5.5), px(x + 5.5), px(y), px(x),
+                                             px(y + 5.5), px(x - 5.5), px(y), c, style);
+                    }
+                    break;
+                }
+            }
+        }
+    };
+    for (auto kind : {Mark::Kind::band, Mark::Kind::ref_x, Mark::Kind::ref_y, Mark::Kind::bar,
+                      Mark::Kind::line, Mark::Kind::whisker, Mark::Kind::point}) {
+        draw(kind);
+    }
+
+    // 5. Axes: a line along the left and bottom of the plot, outward ticks, tick labels.
+    o += fmt::format("<g class=\"axes\" stroke=\"{}\" stroke-width=\"1\">\n", k_ink);
+    o += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\"/>\n", px(plot_left),
+                     px(plot_bottom), px(plot_right));
+    o += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\"/>\n", px(plot_left),
+                     px(plot_top), px(plot_bottom));
+    std::string labels;
+    if (sx.categorical) {
+        for (std::size_t i = 0; i < m_x.categories.size(); ++i) {
+            const double x = sx(static_cast<double>(i));
+            o += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\"/>\n", px(x),
+                             px(plot_bottom), px(plot_bottom + 5.0));
+            const std::string t = xml_escape(shorten(m_x.categories[i], k_max_label));
+            if (rotate_x) {
+                labels += fmt::format("<text x=\"{0}\" y=\"{1}\" text-anchor=\"end\" "
+                                      "transform=\"rotate(-40 {0} {1})\">{2}</text>\n",
+                                      px(x), px(plot_bottom + 9.0 + 0.3 * fs), t);
+            } else {
+                labels += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n",
+                                      px(x), px(plot_bottom + 9.0 + fs), t);
+            }
+        }
+    } else {
+        for (double t : sx.ticks.values) {
+            const double x = sx(t);
+            o += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\"/>\n", px(x),
+                             px(plot_bottom), px(plot_bottom + 5.0));
+            labels += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n",
+                                  px(x), px(plot_bottom + 9.0 + fs),
+                                  format_fixed(t, sx.ticks.decimals));
+        }
+    }
+    if (sy.categorical) {
+        for (std::size_t i = 0; i < m_y.categories.size(); ++i) {
+            const double y = sy(static_cast<double>(i));
+            o += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\"/>\n",
+                             px(plot_left - 5.0), px(y), px(plot_left));
+            labels += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"end\">{}</text>\n",
+                                  px(plot_left - 9.0), px(y + 0.35 * fs),
+                                  xml_escape(shorten(m_y.categories[i], k_max_label)));
+        }
+    } else {
+        for (double t : sy.ticks.values) {
+            const double y = sy(t);
+            o += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\"/>\n",
+                             px(plot_left - 5.0), px(y), px(plot_left));
+            labels += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"end\">{}</text>\n",
+                                  px(plot_left - 9.0), px(y + 0.35 * fs),
+                                  format_fixed(t, sy.ticks.decimals));
+        }
+    }
+    o += "</g>\n";
+    o += "<g class=\"tick-labels\">\n" + labels + "</g>\n";
+
+    // 6. Axis labels: x centred under the tick labels, y rotated along the left edge.
+    if (!m_x.label.empty()) {
+        o += fmt::format("<text class=\"axis-label\" x=\"{}\" y=\"{}\" text-anchor=\"middle\">"
+                         "{}</text>\n",
+                         px(plot_left + plot_w / 2.0), px(x_labels_bottom - 0.9 * fs),
+                         xml_escape(m_x.label));
+    }
+    if (!m_y.label.empty()) {
+        const double x = 6.0 + fs;
+        const double y = plot_top + plot_h / 2.0;
+        o += fmt::format("<text class=\"axis-label\" x=\"{0}\" y=\"{1}\" text-anchor=\"middle\" "
+                         "transform=\"rotate(-90 {0} {1})\">{2}</text>\n",
+                         px(x), px(y), xml_escape(m_y.label));
+    }
+
+    // 7. Legend, to the right of the plot: a swatch and the label per series.
+    if (!legend.empty()) {
+        const double x = plot_right + 16.0;
+        o += "<g class=\"legend\">\n";
+        for (std::size_t k = 0; k < legend.size(); ++k) {
+            const std::size_t i = legend[k];
+            const char* c = colour_of(i);
+            const double y = plot_top + 8.0 + 1.7 * fs * static_cast<double>(k);
+            const Swatch s = m_series[i].swatch;
+            if (s == Swatch::bar) {
+                o += fmt::format("<rect x=\"{}\" y=\"{}\" width=\"22\" height=\"10\" "
+                                 "fill=\"{}\"/>\n",
+                                 px(x), px(y - 5.0), c);
+            }
+            if (s == Swatch::line || s == Swatch::point_line) {
+                o += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" "
+                                 "stroke-width=\"2\"{4}/>\n",
+                                 px(x), px(y), px(x + 22.0), c,
+                                 dash_attribute(m_series[i].dash));
+            }
+            if (s == Swatch::point || s == Swatch::point_line) {
+                // The same shapes as the point marks, without the "point" class.
+                const double cx = x + 11.0;
+                switch (i % 4) {
+                    case 0:
+                        o += fmt::format("<circle cx=\"{}\" cy=\"{}\" r=\"4.5\" fill=\"{}\"/>\n",
+                                         px(cx), px(y), c);
+                        break;
+                    case 1:
+                        o += fmt::format("<rect x=\"{}\" y=\"{}\" width=\"8\" height=\"8\" "
+                                         "fill=\"{}\"/>\n",
+                                         px(cx - 4.0), px(y - 4.0), c);
+                        break;
+                    case 2:
+                        o += fmt::format("<polygon points=\"{},{} {},{} {},{}\" fill=\"{}\"/>\n",
+                                         px(cx), px(y - 5.5), px(cx + 5.0), px(y + 3.5),
+                                         px(cx - 5.0), px(y + 3.5), c);
+                        break;
+                    default:
+                        o += fmt::format("<polygon points=\"{},{} {},{} {},{} {},{}\" "
+                                         "fill=\"{}\"/>\n",
+                                         px(cx), px(y - 5.5), px(cx + 5.5), px(y), px(cx),
+                                         px(y + 5.5), px(cx - 5.5), px(y), c);
+                }
+            }
+            o += fmt::format("<text x=\"{}\" y=\"{}\">{}</text>\n", px(x + 30.0),
+                             px(y + 0.35 * fs), xml_escape(m_series[i].legend));
+        }
+        o += "</g>\n";
+    }
+
+    // 8. Title above the plot, caption lines under everything.
+    o += fmt::format("<text class=\"title\" x=\"16\" y=\"{}\" font-size=\"{}\" "
+                     "font-weight=\"bold\">{}</text>\n",
+                     px(16.0 + title_fs), px(title_fs), xml_escape(m_title));
+    for (std::size_t i = 0; i < caption.size(); ++i) {
+        o += fmt::format("<text class=\"caption\" x=\"16\" y=\"{}\" font-size=\"{}\" "
+                         "fill=\"#444444\">{}</text>\n",
+                         px(x_labels_bottom + 8.0 + caption_line * static_cast<double>(i + 1) -
+                            0.35 * caption_fs),
+                         px(caption_fs), xml_escape(caption[i]));
+    }
+    o += "</svg>\n";
+    return o;
+}
+
+}  // namespace safesite::report
