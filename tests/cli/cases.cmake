@@ -49,7 +49,7 @@ safesite_cli_case(NAME demo-check ARGS "check|models/ridge.toml" STATUS 0
 safesite_cli_case(NAME demo-run
                   ARGS "run|models/ridge.toml|--out|${CMAKE_CURRENT_BINARY_DIR}/demo-out|--replicates|3|--threads|2" STATUS 0
                   STDOUT "arrival_chain.*lambda.*2015.*pooled.*intervals.*scenario_delta_lambda"
-                  FILES "${CMAKE_CURRENT_BINARY_DIR}/demo-out/lambda.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/summary.json|${CMAKE_CURRENT_BINARY_DIR}/demo-out/coefficients.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/arrival_chain.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/intervals.csv")
+                  FILES "${CMAKE_CURRENT_BINARY_DIR}/demo-out/lambda.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/summary.json|${CMAKE_CURRENT_BINARY_DIR}/demo-out/coefficients.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/arrival_chain.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/intervals.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/figures/lambda_by_year.svg|${CMAKE_CURRENT_BINARY_DIR}/demo-out/figures/retention_curves.svg")
 # A truth with seed experiments: the experiments and the truth of the arrival chain.
 safesite_cli_case(NAME simulate-experiments
                   ARGS "simulate|models/ridge-truth-experiments.toml|--plants|200|--years|3|--seed|1|--burn-in|2|--out|${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments"

@@ -82,12 +82,21 @@ Intervals read_intervals(const std::vector<TidyTable>& tables, const std::string
     return out;
 }
 
-/// " Whiskers: 95 % bootstrap percentile intervals." (empty without intervals).
-std::string interval_note(const Intervals& iv, const std::string& what) {
+/// " with 95 % bootstrap intervals" (empty without intervals).
+std::string interval_note(const Intervals& iv) {
     if (iv.bounds.empty()) return {};
     const std::string level =
         std::isfinite(iv.level) ? fmt::format("{:g} % ", 100.0 * iv.level) : std::string();
-    return " " + what + ": " + level + "bootstrap percentile intervals.";
+    return " with " + level + "bootstrap intervals";
+}
+
+/// Canvas height for a chart with `bands` categories on its y axis: about 48 px a band
+/// between the fixed margins, at least 260 px (common practice: bars neither thin nor fat).
+SvgChart::Layout banded_layout(std::size_t bands, double width) {
+    SvgChart::Layout layout;
+    layout.width = width;
+    layout.height = std::max(260.0, 130.0 + 48.0 * static_cast<double>(bands));
+    return layout;
 }
 
 /// Labels in order of first appearance.
@@ -123,9 +132,8 @@ std::optional<Figure> lambda_by_year_figure(const std::vector<TidyTable>& tables
     const Intervals iv = read_intervals(tables, "lambda");
 
     SvgChart chart("Population growth rate \u03bb per census year",
-                   "Points: \u03bb of the kernel of census year t (t \u2192 t+1); dashed line: "
-                   "the pooled kernel; grey line: \u03bb = 1 (the population keeps its size)." +
-                       interval_note(iv, "Whiskers and band"));
+                   "\u03bb per census-year kernel (t \u2192 t+1)" + interval_note(iv) +
+                       "; dashed: pooled; grey: \u03bb = 1.");
     chart.set_x_categories(years);
     chart.set_x_label("census year t (kernel t \u2192 t+1)");
     chart.set_y_label("\u03bb (per year)");
@@ -163,9 +171,9 @@ std::optional<Figure> scenarios_figure(const std::vector<TidyTable>& tables) {
     const Intervals iv = read_intervals(tables, "scenario_delta_lambda");
 
     SvgChart chart("Change in pooled \u03bb under each scenario",
-                   "Bars: \u0394\u03bb = \u03bb under the scenario \u2212 baseline \u03bb, pooled "
-                   "kernel; bars right of the line raise \u03bb." +
-                       interval_note(iv, "Whiskers"));
+                   "\u0394\u03bb = scenario \u03bb \u2212 baseline \u03bb (pooled kernel)" +
+                       interval_note(iv) + "; right of 0: \u03bb rises.",
+                   banded_layout(names.size(), 720.0));
     chart.set_y_categories(names);
     chart.set_x_label("\u0394\u03bb (pooled kernel)");
     const std::size_t s = chart.add_series("", Swatch::bar);
@@ -215,8 +223,8 @@ std::optional<Figure> retention_curves_figure(const std::vector<TidyTable>& tabl
     if (sites.empty()) return std::nullopt;
 
     SvgChart chart("Seed retention by microsite, seed type \u201c" + focal + "\u201d",
-                   "R(t) = exp(\u2212h t): share of seeds still in place t days after placement "
-                   "(no re-landing), h the daily departure hazard of the retention model.");
+                   "R(t) = exp(\u2212h t), share of seeds still in place t days after placement "
+                   "(without re-landing).");
     chart.set_x_label("days since placement, t");
     chart.set_y_label("share of seeds retained, R(t)");
     chart.include_x(0.0);
@@ -248,13 +256,11 @@ std::optional<Figure> arrival_figure(const std::vector<TidyTable>& tables) {
         add_unique(scenarios, label(row, (*c)[0]));
         add_unique(sites, label(row, (*c)[1]));
     }
-    SvgChart::Layout layout;
-    layout.width = 800.0;  // room for a legend of scenario names
-    layout.height = std::max(440.0, 120.0 + 24.0 * static_cast<double>(sites.size() *
-                                                                        scenarios.size()));
+    // Room for a legend of scenario names; about 24 px a bar.
+    SvgChart::Layout layout = banded_layout(sites.size() * scenarios.size() / 2, 800.0);
     SvgChart chart("Arrival fractions per microsite",
-                   "Share of all seeds produced that lie in each microsite at germination time, "
-                   "for the baseline and each scenario (the rest is lost).",
+                   "Share of all seeds produced that lie in each microsite at germination time "
+                   "(the rest is lost).",
                    layout);
     chart.set_y_categories(sites);
     chart.set_x_label("arrival fraction a\u2098");
@@ -268,7 +274,8 @@ std::optional<Figure> arrival_figure(const std::vector<TidyTable>& tables) {
         const std::size_t j = index_of(scenarios, label(row, (*c)[0]));
         const double m = static_cast<double>(index_of(sites, label(row, (*c)[1])));
         const double centre = m - 0.4 + (static_cast<double>(j) + 0.5) * thickness;
-        chart.add_hbar(series[j], centre, 0.0, value(row, (*c)[2]), thickness * 0.92);
+        const double a = value(row, (*c)[2]);
+        chart.add_hbar(series[j], centre, 0.0, a, thickness * 0.92, fmt::format("{:.3g}", a));
     }
     chart.set_note(k_caution);
     return Figure{"arrival", chart.to_svg()};
@@ -292,8 +299,8 @@ std::optional<Figure> perturbation_figure(const std::vector<TidyTable>& tables) 
         y.push_back(l);
     }
     SvgChart chart("Pooled \u03bb under a change in juvenile survival",
-                   "\u03bb of the pooled kernel when juvenile survival s_J becomes "
-                   "min(1, (1 + \u03b4) s_J); grey lines: \u03bb = 1 and no change.");
+                   "Pooled \u03bb when juvenile survival s_J becomes min(1, (1 + \u03b4) s_J); "
+                   "grey: \u03bb = 1 and no change.");
     chart.set_x_label("change \u03b4 in juvenile survival (%)");
     chart.set_y_label("pooled \u03bb (per year)");
     const std::size_t s = chart.add_series("", Swatch::point_line);

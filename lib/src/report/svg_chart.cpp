@@ -99,6 +99,28 @@ std::vector<std::string> wrap(const std::string& text, std::size_t width) {
 
 bool finite(double v) { return std::isfinite(v); }
 
+/// A marker centred at (x, y): circle, square, triangle or diamond by series index, about
+/// 9 px across; `extra` holds further attributes (class, outline).
+std::string marker(std::size_t series, double x, double y, const char* colour,
+                   const char* extra) {
+    switch (series % 4) {
+        case 0:
+            return fmt::format("<circle{} cx=\"{}\" cy=\"{}\" r=\"4.5\" fill=\"{}\"/>\n", extra,
+                               px(x), px(y), colour);
+        case 1:
+            return fmt::format("<rect{} x=\"{}\" y=\"{}\" width=\"8\" height=\"8\" fill=\"{}\"/>\n",
+                               extra, px(x - 4.0), px(y - 4.0), colour);
+        case 2:
+            return fmt::format("<polygon{} points=\"{},{} {},{} {},{}\" fill=\"{}\"/>\n", extra,
+                               px(x), px(y - 5.5), px(x + 5.0), px(y + 3.5), px(x - 5.0),
+                               px(y + 3.5), colour);
+        default:
+            return fmt::format("<polygon{} points=\"{},{} {},{} {},{} {},{}\" fill=\"{}\"/>\n",
+                               extra, px(x), px(y - 5.5), px(x + 5.5), px(y), px(x), px(y + 5.5),
+                               px(x - 5.5), px(y), colour);
+    }
+}
+
 /// The resolved axis: data range [lo, hi] mapped onto the pixel range [p0, p1].
 struct Scale {
     bool categorical = false;
@@ -268,11 +290,12 @@ void SvgChart::add_whisker(std::size_t series, double x0, double y0, double x1, 
 }
 
 void SvgChart::add_hbar(std::size_t series, double category, double from, double to,
-                        double thickness) {
+                        double thickness, std::string label) {
     check_series(series);
     assert(thickness > 0.0 && thickness <= 1.0);
     if (!finite(category) || !finite(from) || !finite(to)) return;
-    m_marks.push_back({Mark::Kind::bar, series, {from, to}, {category}, thickness, {}});
+    m_marks.push_back(
+        {Mark::Kind::bar, series, {from, to}, {category}, thickness, std::move(label)});
     include(m_x, from);
     include(m_x, to);
 }
@@ -352,7 +375,8 @@ std::string SvgChart::to_svg() const {
     for (std::size_t i = 0; i < m_series.size(); ++i) {
         if (m_series[i].legend.empty()) continue;
         legend.push_back(i);
-        legend_width = std::max(legend_width, text_width(m_series[i].legend, fs) + 40.0);
+        legend_width = std::max(legend_width,
+                                text_width(shorten(m_series[i].legend, k_max_label), fs) + 40.0);
     }
     const double right = L.margin_right + (legend.empty() ? 0.0 : legend_width + 8.0);
     const double plot_w = std::max(L.width - left - right, 40.0);
@@ -382,8 +406,10 @@ std::string SvgChart::to_svg() const {
         sy.p1 = plot_top;
     }
     const double caption_line = 1.35 * caption_fs;
+    // Wrapped at 0.5 em a character, the average of running sans-serif text (common
+    // practice); labels above are sized with a more generous 0.56 em.
     const auto caption_chars = static_cast<std::size_t>(
-        std::max((L.width - 32.0) / (0.56 * caption_fs), 20.0));
+        std::max((L.width - 32.0) / (0.5 * caption_fs), 20.0));
     const std::vector<std::string> caption = wrap(m_caption, caption_chars);
     const double x_labels_bottom = plot_bottom + bottom;
     const double height = x_labels_bottom + 8.0 + caption_line * static_cast<double>(caption.size());
@@ -458,12 +484,20 @@ std::string SvgChart::to_svg() const {
                 }
                 case Mark::Kind::bar: {
                     const double band = std::fabs(sy(1.0) - sy(0.0));
-                    const double h = m.size * band;
-                    const double xa = sx(m.x[0]), xb = sx(m.x[1]);
+                    const double h = std::min(m.size * band, 40.0);
+                    const double xa = sx(m.x[0]), xb = sx(m.x[1]), y = sy(m.y[0]);
                     o += fmt::format("<rect class=\"bar\" x=\"{}\" y=\"{}\" width=\"{}\" "
                                      "height=\"{}\" fill=\"{}\"/>\n",
-                                     px(std::min(xa, xb)), px(sy(m.y[0]) - h / 2.0),
+                                     px(std::min(xa, xb)), px(y - h / 2.0),
                                      px(std::fabs(xb - xa)), px(h), c);
+                    if (!m.label.empty()) {
+                        const bool right = xb >= xa;
+                        o += fmt::format("<text class=\"value-label\" x=\"{}\" y=\"{}\" "
+                                         "font-size=\"{}\"{}>{}</text>\n",
+                                         px(xb + (right ? 4.0 : -4.0)), px(y + 0.3 * fs),
+                                         px(0.85 * fs), right ? "" : " text-anchor=\"end\"",
+                                         xml_escape(m.label));
+                    }
                     break;
                 }
                 case Mark::Kind::line: {
@@ -491,34 +525,10 @@ std::string SvgChart::to_svg() const {
                         m_series[m.series].swatch == Swatch::bar ? k_ink : c);
                     break;
                 }
-                case Mark::Kind::point: {
-                    const double x = sx(m.x[0]), y = sy(m.y[0]);
-                    const char* style = " stroke=\"#ffffff\" stroke-width=\"1\"";
-                    switch (m.series % 4) {
-                        case 0:
-                            o += fmt::format("<circle class=\"point\" cx=\"{}\" cy=\"{}\" r=\"4.5\" "
-                                             "fill=\"{}\"{}/>\n",
-                                             px(x), px(y), c, style);
-                            break;
-                        case 1:
-                            o += fmt::format("<rect class=\"point\" x=\"{}\" y=\"{}\" width=\"8\" "
-                                             "height=\"8\" fill=\"{}\"{}/>\n",
-                                             px(x - 4.0), px(y - 4.0), c, style);
-                            break;
-                        case 2:
-                            o += fmt::format("<polygon class=\"point\" points=\"{},{} {},{} {},{}\" "
-                                             "fill=\"{}\"{}/>\n",
-                                             px(x), px(y - 5.5), px(x + 5.0), px(y + 3.5),
-                                             px(x - 5.0), px(y + 3.5), c, style);
-                            break;
-                        default:
-                            o += fmt::format("<polygon class=\"point\" points=\"{},{} {},{} {},{} "
-                                             "{},{}\" fill=\"{}\"{}/>\n",
-                                             px(x), px(y - 5.5), px(x + 5.5), px(y), px(x),
-                                             px(y + 5.5), px(x - 5.5), px(y), c, style);
-                    }
+                case Mark::Kind::point:
+                    o += marker(m.series, sx(m.x[0]), sy(m.y[0]), c,
+                                " class=\"point\" stroke=\"#ffffff\" stroke-width=\"1\"");
                     break;
-                }
             }
         }
     };
@@ -617,32 +627,10 @@ std::string SvgChart::to_svg() const {
                                  dash_attribute(m_series[i].dash));
             }
             if (s == Swatch::point || s == Swatch::point_line) {
-                // The same shapes as the point marks, without the "point" class.
-                const double cx = x + 11.0;
-                switch (i % 4) {
-                    case 0:
-                        o += fmt::format("<circle cx=\"{}\" cy=\"{}\" r=\"4.5\" fill=\"{}\"/>\n",
-                                         px(cx), px(y), c);
-                        break;
-                    case 1:
-                        o += fmt::format("<rect x=\"{}\" y=\"{}\" width=\"8\" height=\"8\" "
-                                         "fill=\"{}\"/>\n",
-                                         px(cx - 4.0), px(y - 4.0), c);
-                        break;
-                    case 2:
-                        o += fmt::format("<polygon points=\"{},{} {},{} {},{}\" fill=\"{}\"/>\n",
-                                         px(cx), px(y - 5.5), px(cx + 5.0), px(y + 3.5),
-                                         px(cx - 5.0), px(y + 3.5), c);
-                        break;
-                    default:
-                        o += fmt::format("<polygon points=\"{},{} {},{} {},{} {},{}\" "
-                                         "fill=\"{}\"/>\n",
-                                         px(cx), px(y - 5.5), px(cx + 5.5), px(y), px(cx),
-                                         px(y + 5.5), px(cx - 5.5), px(y), c);
-                }
+                o += marker(i, x + 11.0, y, c, "");  // as the point marks, no class
             }
             o += fmt::format("<text x=\"{}\" y=\"{}\">{}</text>\n", px(x + 30.0),
-                             px(y + 0.35 * fs), xml_escape(m_series[i].legend));
+                             px(y + 0.35 * fs), xml_escape(shorten(m_series[i].legend, k_max_label)));
         }
         o += "</g>\n";
     }

@@ -97,8 +97,10 @@ public:
     /// An interval from (x0, y0) to (x1, y1) with end caps across it.
     void add_whisker(std::size_t series, double x0, double y0, double x1, double y1);
     /// A horizontal bar on a categorical y axis: from x = `from` to x = `to`, centred at
-    /// y = `category` (index, fractional allowed), `thickness` in band units (0 < t <= 1).
-    void add_hbar(std::size_t series, double category, double from, double to, double thickness);
+    /// y = `category` (index, fractional allowed), `thickness` in band units (0 < t <= 1; at
+    /// most 40 px). A non-empty `label` (e.g. the value) is written just past the end `to`.
+    void add_hbar(std::size_t series, double category, double from, double to, double thickness,
+                  std::string label = {});
     /// A translucent band across the whole plot between y = lo and y = hi.
     void add_band_y(std::size_t series, double lo, double hi);
     /// A thin grey reference line across the plot at x = value (resp. y), labelled.
@@ -132,7 +134,7 @@ private:
         std::vector<double> x;  ///< data coordinates (bar: from, to; band: unused)
         std::vector<double> y;  ///< (bar: category; band: lo, hi)
         double size = 0.0;      ///< bar thickness
-        std::string label;      ///< reference lines
+        std::string label;      ///< reference lines, bar values
     };
 
     static void include(Axis& axis, double value);
