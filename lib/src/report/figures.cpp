@@ -108,6 +108,25 @@ std::size_t index_of(const std::vector<std::string>& list, const std::string& s)
     return static_cast<std::size_t>(std::find(list.begin(), list.end(), s) - list.begin());
 }
 
+/// The figure of a finished chart, with the caution kept in its description.
+Figure finish(SvgChart& chart, std::string name) {
+    chart.set_note(k_caution);
+    return Figure{std::move(name), chart.to_svg()};
+}
+
+/// (x, y) pairs sorted by x (stable) and split into the two coordinate lists.
+std::pair<std::vector<double>, std::vector<double>> sorted_by_x(
+    std::vector<std::pair<double, double>> points) {
+    std::stable_sort(points.begin(), points.end(),
+                     [](const auto& a, const auto& b) { return a.first < b.first; });
+    std::pair<std::vector<double>, std::vector<double>> out;
+    for (const auto& [x, y] : points) {
+        out.first.push_back(x);
+        out.second.push_back(y);
+    }
+    return out;
+}
+
 }  // namespace
 
 std::optional<Figure> lambda_by_year_figure(const std::vector<TidyTable>& tables) {
@@ -152,8 +171,7 @@ std::optional<Figure> lambda_by_year_figure(const std::vector<TidyTable>& tables
         }
     }
     chart.add_points(s_year, x, lambdas);
-    chart.set_note(k_caution);
-    return Figure{"lambda_by_year", chart.to_svg()};
+    return finish(chart, "lambda_by_year");
 }
 
 std::optional<Figure> scenarios_figure(const std::vector<TidyTable>& tables) {
@@ -185,8 +203,7 @@ std::optional<Figure> scenarios_figure(const std::vector<TidyTable>& tables) {
             chart.add_whisker(s, b->first, y, b->second, y);
         }
     }
-    chart.set_note(k_caution);
-    return Figure{"scenarios", chart.to_svg()};
+    return finish(chart, "scenarios");
 }
 
 std::optional<Figure> retention_curves_figure(const std::vector<TidyTable>& tables) {
@@ -232,19 +249,11 @@ std::optional<Figure> retention_curves_figure(const std::vector<TidyTable>& tabl
     chart.include_y(1.0);
     constexpr Dash k_dashes[] = {Dash::solid, Dash::dashed, Dash::dotted, Dash::dash_dot};
     for (std::size_t i = 0; i < sites.size(); ++i) {
-        auto points = curves[sites[i]];
-        std::stable_sort(points.begin(), points.end(),
-                         [](const auto& a, const auto& b) { return a.first < b.first; });
-        std::vector<double> x, y;
-        for (const auto& [d, r] : points) {
-            x.push_back(d);
-            y.push_back(r);
-        }
+        const auto [x, y] = sorted_by_x(curves[sites[i]]);
         const std::size_t s = chart.add_series(sites[i], Swatch::line, k_dashes[i % 4]);
         chart.add_line(s, x, y);
     }
-    chart.set_note(k_caution);
-    return Figure{"retention_curves", chart.to_svg()};
+    return finish(chart, "retention_curves");
 }
 
 std::optional<Figure> arrival_figure(const std::vector<TidyTable>& tables) {
@@ -277,8 +286,7 @@ std::optional<Figure> arrival_figure(const std::vector<TidyTable>& tables) {
         const double a = value(row, (*c)[2]);
         chart.add_hbar(series[j], centre, 0.0, a, thickness * 0.92, fmt::format("{:.3g}", a));
     }
-    chart.set_note(k_caution);
-    return Figure{"arrival", chart.to_svg()};
+    return finish(chart, "arrival");
 }
 
 std::optional<Figure> perturbation_figure(const std::vector<TidyTable>& tables) {
@@ -291,13 +299,7 @@ std::optional<Figure> perturbation_figure(const std::vector<TidyTable>& tables) 
         points.emplace_back(100.0 * value(row, (*c)[1]), value(row, (*c)[2]));
     }
     if (points.empty()) return std::nullopt;
-    std::stable_sort(points.begin(), points.end(),
-                     [](const auto& a, const auto& b) { return a.first < b.first; });
-    std::vector<double> x, y;
-    for (const auto& [d, l] : points) {
-        x.push_back(d);
-        y.push_back(l);
-    }
+    const auto [x, y] = sorted_by_x(std::move(points));
     SvgChart chart("Pooled \u03bb under a change in juvenile survival",
                    "Pooled \u03bb when juvenile survival s_J becomes min(1, (1 + \u03b4) s_J); "
                    "grey: \u03bb = 1 and no change.");
@@ -308,8 +310,7 @@ std::optional<Figure> perturbation_figure(const std::vector<TidyTable>& tables) 
     chart.add_reference_x(0.0, "no change");
     chart.add_line(s, x, y);
     chart.add_points(s, x, y);
-    chart.set_note(k_caution);
-    return Figure{"perturbation", chart.to_svg()};
+    return finish(chart, "perturbation");
 }
 
 std::vector<Figure> all_figures(const std::vector<TidyTable>& tables) {

@@ -9,7 +9,8 @@
 /// Marks are given in data coordinates and kept until to_svg() lays the chart out; a
 /// categorical coordinate is the label index i (0, 1, …), the band centre, and fractional
 /// values move within the band (grouped bars). A mark with a non-finite coordinate is
-/// skipped; a line is broken at non-finite points. Numbers are written with fixed short
+/// skipped; a line is broken at non-finite points. Category and legend labels longer than 36
+/// characters are shortened with "…". Numbers are written with fixed short
 /// precision, so the same marks give byte-identical text on every run and machine.
 
 #include <cstddef>
