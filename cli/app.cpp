@@ -18,7 +18,7 @@ namespace safesite::cli {
 namespace {
 
 constexpr const char* k_short_usage =
-    "Usage: safesite <verb> [options]   (verbs: check, fit, run, simulate, eval)\n"
+    "Usage: safesite <verb> [options]   (verbs: check, fit, run, simulate, eval, report)\n"
     "Run 'safesite --help' for the verbs, 'safesite <verb> --help' for their options.\n";
 
 constexpr const char* k_description =
@@ -49,7 +49,8 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream& e
                "failure.");
 
     std::vector<Verb> verbs = {add_check_verb(app), add_fit_verb(app), add_run_verb(app),
-                               add_simulate_verb(app), add_eval_verb(app)};
+                               add_simulate_verb(app), add_eval_verb(app),
+                               add_report_verb(app)};
 
     const Verb* chosen = nullptr;
     try {

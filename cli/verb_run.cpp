@@ -10,6 +10,7 @@
 #include "safesite/pipeline/bootstrap.hpp"
 #include "safesite/pipeline/run.hpp"
 #include "safesite/report/figures.hpp"
+#include "safesite/report/html_report.hpp"
 #include "safesite/report/output_folder.hpp"
 #include "safesite/report/text_summary.hpp"
 #include "verbs.hpp"
@@ -61,6 +62,8 @@ int run_run(const RunOptions& o, const Streams& io) {
     progress(io, "writing " + dir.string());
     auto written = report::write_output_folder(dir, tables, info);
     for (auto& p : report::write_figures(dir, tables)) written.push_back(std::move(p));
+    written.push_back(
+        report::write_html_report(dir, tables, info, report::all_figures(tables)));
     report::TextOptions text;
     text.max_rows = 40;
     // The terminal shows the scenarios of the pooled kernel; every year is in the files.

@@ -36,6 +36,7 @@ Verb add_fit_verb(CLI::App& app);
 Verb add_run_verb(CLI::App& app);
 Verb add_simulate_verb(CLI::App& app);
 Verb add_eval_verb(CLI::App& app);
+Verb add_report_verb(CLI::App& app);
 
 /// Print a progress line on stderr when it is a terminal.
 void progress(const Streams& io, const std::string& message);

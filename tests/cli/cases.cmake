@@ -3,9 +3,10 @@
 set(SAFESITE_EXE $<TARGET_FILE:safesite>)
 set(SAFESITE_EXPECT ${CMAKE_CURRENT_SOURCE_DIR}/cli/expect.cmake)
 
-# safesite_cli_case(NAME name ARGS "a|b" STATUS n [STDOUT re] [STDERR re] [FILES "f|g"])
+# safesite_cli_case(NAME name ARGS "a|b" STATUS n [STDOUT re] [STDERR re] [FILES "f|g"]
+#                   [REMOVE "f|g"])   REMOVE: files deleted before the run
 function(safesite_cli_case)
-  cmake_parse_arguments(C "" "NAME;ARGS;STATUS;STDOUT;STDERR;FILES" "" ${ARGN})
+  cmake_parse_arguments(C "" "NAME;ARGS;STATUS;STDOUT;STDERR;FILES;REMOVE" "" ${ARGN})
   set(defs -DEXE=${SAFESITE_EXE} "-DARGS=${C_ARGS}" -DSTATUS=${C_STATUS}
            -DWORKDIR=${PROJECT_SOURCE_DIR})
   if(DEFINED C_STDOUT)
@@ -17,13 +18,16 @@ function(safesite_cli_case)
   if(DEFINED C_FILES)
     list(APPEND defs "-DFILES=${C_FILES}")
   endif()
+  if(DEFINED C_REMOVE)
+    list(APPEND defs "-DREMOVE=${C_REMOVE}")
+  endif()
   add_test(NAME cli:${C_NAME} COMMAND ${CMAKE_COMMAND} ${defs} -P ${SAFESITE_EXPECT})
   set_tests_properties(cli:${C_NAME} PROPERTIES LABELS cli)
 endfunction()
 
 safesite_cli_case(NAME help ARGS "--help" STATUS 0 STDOUT "Usage:.*simulate")
 safesite_cli_case(NAME version ARGS "--version" STATUS 0 STDOUT "^safesite [0-9]+\\.[0-9]+\\.[0-9]+")
-foreach(verb check fit run eval simulate)
+foreach(verb check fit run eval simulate report)
   safesite_cli_case(NAME ${verb}-help ARGS "${verb}|--help" STATUS 0 STDOUT "safesite ${verb}")
 endforeach()
 
@@ -40,6 +44,8 @@ safesite_cli_case(NAME simulate-needs-plants
 # Bad input: status 3 naming the file.
 safesite_cli_case(NAME missing-model-file ARGS "check|models/no-such-model.toml" STATUS 3
                   STDERR "^safesite: error: [^\n]*no-such-model.toml")
+safesite_cli_case(NAME report-missing-folder ARGS "report|no-such-output-folder" STATUS 3
+                  STDERR "^safesite: error: [^\n]*no-such-output-folder/summary.json")
 safesite_cli_case(NAME eval-needs-fixed-rates ARGS "eval|models/ridge.toml" STATUS 3
                   STDERR "^safesite: error: [^\n]*ridge.toml")
 
@@ -49,7 +55,15 @@ safesite_cli_case(NAME demo-check ARGS "check|models/ridge.toml" STATUS 0
 safesite_cli_case(NAME demo-run
                   ARGS "run|models/ridge.toml|--out|${CMAKE_CURRENT_BINARY_DIR}/demo-out|--replicates|3|--threads|2" STATUS 0
                   STDOUT "arrival_chain.*lambda.*2015.*pooled.*intervals.*scenario_delta_lambda"
-                  FILES "${CMAKE_CURRENT_BINARY_DIR}/demo-out/lambda.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/summary.json|${CMAKE_CURRENT_BINARY_DIR}/demo-out/coefficients.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/arrival_chain.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/intervals.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/figures/lambda_by_year.svg|${CMAKE_CURRENT_BINARY_DIR}/demo-out/figures/retention_curves.svg")
+                  FILES "${CMAKE_CURRENT_BINARY_DIR}/demo-out/lambda.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/summary.json|${CMAKE_CURRENT_BINARY_DIR}/demo-out/coefficients.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/arrival_chain.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/intervals.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/figures/lambda_by_year.svg|${CMAKE_CURRENT_BINARY_DIR}/demo-out/figures/retention_curves.svg|${CMAKE_CURRENT_BINARY_DIR}/demo-out/report.html")
+set_tests_properties(cli:demo-run PROPERTIES FIXTURES_SETUP demo_out)
+# `report` re-renders the report of the folder demo-run wrote (a CTest fixture orders the two;
+# report.html is deleted first, so the file checked is the one `report` wrote).
+safesite_cli_case(NAME demo-report ARGS "report|${CMAKE_CURRENT_BINARY_DIR}/demo-out" STATUS 0
+                  STDOUT "wrote [^\n]*demo-out/report.html"
+                  REMOVE "${CMAKE_CURRENT_BINARY_DIR}/demo-out/report.html"
+                  FILES "${CMAKE_CURRENT_BINARY_DIR}/demo-out/report.html")
+set_tests_properties(cli:demo-report PROPERTIES FIXTURES_REQUIRED demo_out)
 # A truth with seed experiments: the experiments and the truth of the arrival chain.
 safesite_cli_case(NAME simulate-experiments
                   ARGS "simulate|models/ridge-truth-experiments.toml|--plants|200|--years|3|--seed|1|--burn-in|2|--out|${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments"

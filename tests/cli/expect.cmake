@@ -1,8 +1,14 @@
 # Runs one safesite command and checks its exit status and output (CTest label "cli").
 #   cmake -DEXE=<safesite> -DARGS="a|b|c" -DSTATUS=<n> [-DSTDOUT=<regex>] [-DSTDERR=<regex>]
-#         [-DFILES="dir/a.csv|dir/b.csv"] [-DWORKDIR=<dir>] -P expect.cmake
-# ARGS and FILES use '|' as separator (';' would be split by add_test).
+#         [-DFILES="dir/a.csv|dir/b.csv"] [-DREMOVE="dir/c.html"] [-DWORKDIR=<dir>]
+#         -P expect.cmake
+# ARGS, FILES and REMOVE use '|' as separator (';' would be split by add_test). REMOVE names
+# files deleted before the run, so that FILES shows the run wrote them anew.
 string(REPLACE "|" ";" args "${ARGS}")
+if(DEFINED REMOVE)
+  string(REPLACE "|" ";" remove "${REMOVE}")
+  file(REMOVE ${remove})
+endif()
 if(NOT DEFINED WORKDIR)
   set(WORKDIR ".")
 endif()

@@ -49,7 +49,7 @@ fs::path fresh_dir(const std::string& tag) {
     return p;
 }
 
-const std::vector<std::string> k_verbs = {"check", "fit", "run", "eval", "simulate"};
+const std::vector<std::string> k_verbs = {"check", "fit", "run", "eval", "simulate", "report"};
 
 }  // namespace
 
@@ -79,6 +79,7 @@ TEST_CASE("misuse is status 2 with one error line and a short usage on stderr", 
         {"simulate", "t.toml", "--plants", "10"},   // missing required options
         {"simulate", "t.toml", "--plants", "0", "--years", "3", "--seed", "1", "--out", "x"},
         {"eval", "m.toml", "--top", "zero"},        // not a number
+        {"report"},                                 // missing DIR
     };
     for (const auto& args : cases) {
         std::string joined;
@@ -107,6 +108,12 @@ TEST_CASE("a bad model file is status 3 naming the file", "[cli][unit]") {
     CHECK(bad.status == 3);
     CHECK(bad.err.find(model.string() + ":3") != std::string::npos);
     CHECK(std::count(bad.err.begin(), bad.err.end(), '\n') == 1);  // one line
+
+    // `report` on a folder without summary.json: exit 3 naming the file.
+    const Outcome report = run({"report", (dir / "no-such-folder").string()});
+    CHECK(report.status == 3);
+    CHECK(report.err.rfind("safesite: error: ", 0) == 0);
+    CHECK(report.err.find("no-such-folder/summary.json") != std::string::npos);
     fs::remove_all(dir);
 }
 

@@ -18,6 +18,10 @@ struct RunInfo {
     std::optional<std::uint64_t> seed;    ///< random seed in use, when the run draws numbers
     std::vector<std::string> assumptions; ///< stated assumptions (model_assumptions() + more)
     std::vector<std::string> warnings;    ///< warnings raised while the run went on
+    /// Version of safesite that wrote the results, when they were read back from an output
+    /// folder (`safesite_version` of summary.json); empty: this build (safesite::version()).
+    /// to_summary_json() always writes this build's version.
+    std::string safesite_version;
 };
 
 }  // namespace safesite::report
