@@ -9,6 +9,8 @@
 #include "safesite/error.hpp"
 #include "safesite/io/atomic_file.hpp"
 #include "safesite/report/caution.hpp"
+#include "safesite/report/output_folder.hpp"
+#include "safesite/report/svg_chart.hpp"
 #include "safesite/version.hpp"
 
 // Coordinates of plants are never shown: no tidy table carries them (docs/formats.md "Output
@@ -22,22 +24,9 @@ namespace {
 
 namespace fs = std::filesystem;
 
-/// Text escaped for HTML character data and attribute values.
-std::string esc(const std::string& s) {
-    std::string out;
-    out.reserve(s.size());
-    for (char c : s) {
-        switch (c) {
-            case '&': out += "&amp;"; break;
-            case '<': out += "&lt;"; break;
-            case '>': out += "&gt;"; break;
-            case '"': out += "&quot;"; break;
-            case '\'': out += "&#39;"; break;
-            default: out += c;
-        }
-    }
-    return out;
-}
+/// Text escaped for HTML character data and attribute values (the XML escape of the figures:
+/// & < > " ' as entities; control characters become spaces, which HTML collapses anyway).
+std::string esc(const std::string& s) { return xml_escape(s); }
 
 /// The inverse of the five entities of xml_escape(), for text taken out of an SVG.
 std::string unescape_xml(std::string s) {
@@ -446,13 +435,7 @@ std::string render_html_report(const std::vector<TidyTable>& tables, const RunIn
 fs::path write_html_report(const fs::path& dir, const std::vector<TidyTable>& tables,
                            const RunInfo& info, const std::vector<Figure>& figures) {
     const std::string html = render_html_report(tables, info, figures);
-    try {
-        io::ensure_directory(dir);
-    } catch (const InputError&) {
-        throw;
-    } catch (const Error& e) {
-        throw InputError({dir.string(), 0, 0, "out"}, e.what());
-    }
+    ensure_output_folder(dir);
     const fs::path p = dir / "report.html";
     try {
         io::write_file_atomic(p, html);

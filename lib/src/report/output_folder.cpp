@@ -68,7 +68,9 @@ void write_checked(const fs::path& path, const std::string& content) {
     }
 }
 
-void make_folder(const fs::path& dir) {
+}  // namespace
+
+void ensure_output_folder(const fs::path& dir) {
     try {
         io::ensure_directory(dir);
     } catch (const InputError&) {
@@ -77,8 +79,6 @@ void make_folder(const fs::path& dir) {
         throw InputError({dir.string(), 0, 0, "out"}, e.what());
     }
 }
-
-}  // namespace
 
 std::string to_csv(const TidyTable& table) {
     check_table(table);
@@ -132,7 +132,7 @@ std::string to_summary_json(const std::vector<TidyTable>& tables, const RunInfo&
 
 fs::path write_csv(const fs::path& dir, const TidyTable& table) {
     const std::string text = to_csv(table);
-    make_folder(dir);
+    ensure_output_folder(dir);
     const fs::path p = dir / (table.name + ".csv");
     write_checked(p, text);
     return p;
@@ -144,7 +144,7 @@ std::vector<fs::path> write_output_folder(const fs::path& dir,
     check_tables(tables);
     // Render everything first: a bad table fails before any file is touched.
     const std::string json = to_summary_json(tables, info);
-    make_folder(dir);
+    ensure_output_folder(dir);
     std::vector<fs::path> written;
     for (const auto& t : tables) {
         const fs::path p = dir / (t.name + ".csv");

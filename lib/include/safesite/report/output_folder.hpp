@@ -34,6 +34,10 @@ std::filesystem::path write_csv(const std::filesystem::path& dir, const TidyTabl
 
 /// Write the output folder: creates `dir` (and parents) when absent, writes every table as
 /// `<dir>/<name>.csv`, then `<dir>/summary.json`. Existing files of the same names are
+/// Create the output folder `dir` (and its parents) when missing.
+/// \throws InputError (key "out") naming the folder when it cannot be created.
+void ensure_output_folder(const std::filesystem::path& dir);
+
 /// replaced; other files in `dir` are left alone. Returns the paths written, in order.
 /// \throws UsageError for invalid or duplicate table names; InputError (key "out") when the
 ///         folder cannot be created or a file cannot be written.
