@@ -12,6 +12,7 @@
 #include "safesite/pipeline/data_rules.hpp"
 #include "safesite/pipeline/fixed_model.hpp"
 #include "safesite/pipeline/tables.hpp"
+#include "safesite/stats/family.hpp"
 
 namespace safesite::pipeline {
 
@@ -56,8 +57,8 @@ void add_arrival_rows(const ArrivalFit& a, FitResult& out) {
     const std::pair<const char*, const arrival::BinomialFit*> fits[] = {
         {"trapping", &a.trapping}, {"retention", &a.retention}};
     for (const auto& [name, fit] : fits) {
-        const char* link = fit->link == stats::Link::cloglog ? "cloglog" : "logit";
-        out.rates.push_back({name, "binomial", link, fit->formula, "none", false,
+        out.rates.push_back({name, "binomial", stats::to_string(fit->link), fit->formula, "none",
+                             false,
                              static_cast<std::size_t>(fit->nobs)});
         for (std::size_t j = 0; j < fit->names.size(); ++j) {
             CoefficientRow r{name, "all", "none", "fitted", fit->names[j]};
