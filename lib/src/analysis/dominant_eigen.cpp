@@ -22,6 +22,7 @@
 #include <Spectra/GenEigsSolver.h>
 
 #include "safesite/analysis/eigen_error.hpp"
+#include "core/number_text.hpp"
 #include "safesite/analysis/eigen_triple.hpp"
 #include "safesite/kernel/kernel_error.hpp"
 
@@ -32,11 +33,7 @@ namespace {
 using kernel::KernelOperator;
 using kernel::TransposedKernelOperator;
 
-std::string number(double x) {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, "%.10g", x);
-    return buf;
-}
+std::string number(double x) { return core::number_text(x, 10); }
 
 constexpr double nan = std::numeric_limits<double>::quiet_NaN();
 

@@ -13,17 +13,14 @@
 #include <Eigen/Eigenvalues>
 #include <Eigen/LU>
 
+#include "core/number_text.hpp"
 #include "safesite/error.hpp"
 
 namespace safesite::analysis {
 
 namespace {
 
-std::string number(double x) {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, "%.6g", x);
-    return buf;
-}
+std::string number(double x) { return core::number_text(x, 6); }
 
 // LU of I − P, life expectancy η = (I − Pᵀ)^{-1} ω / ω, and the ρ(P) < 1 check on y.
 Eigen::PartialPivLU<Eigen::MatrixXd> fundamental(const Eigen::MatrixXd& P,

@@ -5,18 +5,14 @@
 #include <set>
 #include <string>
 
+#include "core/number_text.hpp"
 #include "arrival/detail/csv_text.hpp"
 #include "safesite/error.hpp"
 
 namespace safesite::arrival {
 namespace {
 
-std::string number(double x) {
-    // Shortest round-trip-ish rendering for messages.
-    char buffer[32];
-    std::snprintf(buffer, sizeof buffer, "%.10g", x);
-    return buffer;
-}
+std::string number(double x) { return core::number_text(x, 10); }
 
 void check_length(const Eigen::VectorXd& v, std::size_t m, const char* name) {
     if (static_cast<std::size_t>(v.size()) != m)

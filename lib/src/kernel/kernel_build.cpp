@@ -12,17 +12,14 @@
 #include <boost/math/distributions/normal.hpp>
 
 #include "safesite/kernel/kernel_error.hpp"
+#include "core/number_text.hpp"
 #include "safesite/kernel/kernel_operator.hpp"
 
 namespace safesite::kernel {
 
 namespace {
 
-std::string number(double x) {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, "%.6g", x);
-    return buf;
-}
+std::string number(double x) { return core::number_text(x, 6); }
 
 // Check one evaluated value; `what` names the admissible range.
 enum class Range { probability, non_negative, finite, positive };

@@ -7,17 +7,14 @@
 
 #include <boost/math/special_functions/legendre.hpp>
 
+#include "core/number_text.hpp"
 #include "safesite/kernel/kernel_error.hpp"
 
 namespace safesite::kernel {
 
 namespace {
 
-std::string number(double x) {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, "%.17g", x);
-    return buf;
-}
+std::string number(double x) { return core::number_text(x, 17); }
 
 }  // namespace
 

@@ -4,6 +4,7 @@
 #include <cstdio>
 #include <limits>
 
+#include "core/number_text.hpp"
 #include "safesite/error.hpp"
 
 namespace safesite::pipeline {
@@ -12,11 +13,7 @@ namespace {
 
 constexpr double k_nan = std::numeric_limits<double>::quiet_NaN();
 
-std::string fmt_number(double x) {
-    char buf[32];
-    std::snprintf(buf, sizeof buf, "%.4g", x);
-    return buf;
-}
+std::string fmt_number(double x) { return core::number_text(x, 4); }
 
 }  // namespace
 

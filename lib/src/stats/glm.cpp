@@ -22,6 +22,7 @@
 #include <boost/math/special_functions/gamma.hpp>
 #include <boost/math/special_functions/trigamma.hpp>
 
+#include "core/number_text.hpp"
 #include "safesite/stats/design.hpp"
 #include "stats/detail/design_detail.hpp"
 #include "stats/detail/irls.hpp"
@@ -33,11 +34,7 @@ namespace {
 constexpr double k_nan = std::numeric_limits<double>::quiet_NaN();
 constexpr double k_theta_max = 1e8;
 
-std::string fmt(double v) {
-    char buf[32];
-    std::snprintf(buf, sizeof buf, "%.4g", v);
-    return buf;
-}
+std::string fmt(double v) { return core::number_text(v, 4); }
 
 // Log-likelihood of the fitted means (μ a proportion for binomial).
 double log_likelihood(const detail::IrlsProblem& p, const Eigen::VectorXd& mu,

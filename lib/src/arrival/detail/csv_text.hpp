@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "core/number_text.hpp"
 #include "safesite/error.hpp"
 
 namespace safesite::arrival::detail {
@@ -25,11 +26,7 @@ inline std::string csv_field(const std::string& s) {
 
 /// A decimal with up to 10 significant digits and '.' as decimal mark ("%.10g" in the C
 /// locale, which every safesite program uses).
-inline std::string csv_number(double x) {
-    char buffer[40];
-    std::snprintf(buffer, sizeof buffer, "%.10g", x);
-    return buffer;
-}
+inline std::string csv_number(double x) { return core::number_text(x, 10); }
 
 /// `"a", "b", "c"` for messages listing admissible labels.
 inline std::string quoted_list(const std::vector<std::string>& labels) {
