@@ -61,9 +61,10 @@ int run_run(const RunOptions& o, const Streams& io) {
     const std::filesystem::path dir = output_dir(o.out, model);
     progress(io, "writing " + dir.string());
     auto written = report::write_output_folder(dir, tables, info);
-    for (auto& p : report::write_figures(dir, tables)) written.push_back(std::move(p));
-    written.push_back(
-        report::write_html_report(dir, tables, info, report::all_figures(tables)));
+    // Figures drawn once, for their files and for the HTML report.
+    const std::vector<report::Figure> figures = report::all_figures(tables);
+    for (auto& p : report::write_figures(dir, figures)) written.push_back(std::move(p));
+    written.push_back(report::write_html_report(dir, tables, info, figures));
     report::TextOptions text;
     text.max_rows = 40;
     // The terminal shows the scenarios of the pooled kernel; every year is in the files.

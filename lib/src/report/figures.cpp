@@ -11,6 +11,7 @@
 
 #include "safesite/error.hpp"
 #include "safesite/io/atomic_file.hpp"
+#include "safesite/report/output_folder.hpp"
 #include "safesite/report/caution.hpp"
 #include "safesite/report/svg_chart.hpp"
 
@@ -322,26 +323,14 @@ std::vector<Figure> all_figures(const std::vector<TidyTable>& tables) {
     return out;
 }
 
-std::vector<fs::path> write_figures(const fs::path& dir, const std::vector<TidyTable>& tables) {
-    // Draw everything first, so that nothing is written when drawing fails.
-    const std::vector<Figure> figures = all_figures(tables);
+std::vector<fs::path> write_figures(const fs::path& dir, const std::vector<Figure>& figures) {
     std::vector<fs::path> written;
     if (figures.empty()) return written;
     const fs::path folder = dir / "figures";
-    // io's errors become input errors naming the path and the key "out", as for the tables.
-    auto as_input_error = [](const fs::path& p, auto&& action) {
-        try {
-            action();
-        } catch (const InputError&) {
-            throw;
-        } catch (const Error& e) {
-            throw InputError({p.string(), 0, 0, "out"}, e.what());
-        }
-    };
-    as_input_error(folder, [&] { io::ensure_directory(folder); });
+    ensure_output_folder(folder);
     for (const auto& f : figures) {
         const fs::path p = folder / (f.name + ".svg");
-        as_input_error(p, [&] { io::write_file_atomic(p, f.svg); });
+        write_output_file(p, f.svg);
         written.push_back(p);
     }
     return written;

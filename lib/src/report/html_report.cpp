@@ -437,13 +437,7 @@ fs::path write_html_report(const fs::path& dir, const std::vector<TidyTable>& ta
     const std::string html = render_html_report(tables, info, figures);
     ensure_output_folder(dir);
     const fs::path p = dir / "report.html";
-    try {
-        io::write_file_atomic(p, html);
-    } catch (const InputError&) {
-        throw;
-    } catch (const Error& e) {
-        throw InputError({p.string(), 0, 0, "out"}, e.what());
-    }
+    write_output_file(p, html);
     return p;
 }
 

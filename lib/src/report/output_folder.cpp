@@ -56,9 +56,9 @@ void check_tables(const std::vector<TidyTable>& tables) {
     }
 }
 
-/// io's atomic write, with a failure turned into an input error that names the path and the
-/// key "out" (the output folder is an input of the command line).
-void write_checked(const fs::path& path, const std::string& content) {
+}  // namespace
+
+void write_output_file(const fs::path& path, const std::string& content) {
     try {
         io::write_file_atomic(path, content);
     } catch (const InputError&) {
@@ -67,8 +67,6 @@ void write_checked(const fs::path& path, const std::string& content) {
         throw InputError({path.string(), 0, 0, "out"}, e.what());
     }
 }
-
-}  // namespace
 
 void ensure_output_folder(const fs::path& dir) {
     try {
@@ -134,7 +132,7 @@ fs::path write_csv(const fs::path& dir, const TidyTable& table) {
     const std::string text = to_csv(table);
     ensure_output_folder(dir);
     const fs::path p = dir / (table.name + ".csv");
-    write_checked(p, text);
+    write_output_file(p, text);
     return p;
 }
 
@@ -148,11 +146,11 @@ std::vector<fs::path> write_output_folder(const fs::path& dir,
     std::vector<fs::path> written;
     for (const auto& t : tables) {
         const fs::path p = dir / (t.name + ".csv");
-        write_checked(p, to_csv(t));
+        write_output_file(p, to_csv(t));
         written.push_back(p);
     }
     const fs::path s = dir / "summary.json";
-    write_checked(s, json);
+    write_output_file(s, json);
     written.push_back(s);
     return written;
 }

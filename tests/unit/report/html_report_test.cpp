@@ -309,7 +309,7 @@ TEST_CASE("an output folder read back renders the same report", "[report][unit]"
     const auto tables = all_tables();
     const RunInfo info = example_info();
     write_output_folder(tmp.path, tables, info);
-    write_figures(tmp.path, tables);
+    write_figures(tmp.path, all_figures(tables));
     const std::string direct = render_html_report(tables, info, all_figures(tables));
 
     const OutputFolder back = read_output_folder(tmp.path);

@@ -55,13 +55,13 @@ std::optional<Figure> perturbation_figure(const std::vector<TidyTable>& tables);
 /// Every figure the tables allow, in the order of the functions above.
 std::vector<Figure> all_figures(const std::vector<TidyTable>& tables);
 
-/// Write all_figures(tables) as `<dir>/figures/<name>.svg`, each atomically (temporary file
-/// in the same folder, then rename; io::write_file_atomic); the `figures` folder is created
-/// when there is something to write. Other files are left alone. Returns the paths written
-/// (empty when no figure can be drawn).
+/// Write figures already drawn (e.g. all_figures(tables)) as `<dir>/figures/<name>.svg`, each
+/// atomically (report::write_output_file); the `figures` folder is created when there is
+/// something to write. Other files are left alone. Returns the paths written (empty for no
+/// figure).
 /// \throws InputError (key "out") when the folder cannot be created or a file cannot be
 ///         written.
 std::vector<std::filesystem::path> write_figures(const std::filesystem::path& dir,
-                                                 const std::vector<TidyTable>& tables);
+                                                 const std::vector<Figure>& figures);
 
 }  // namespace safesite::report

@@ -34,6 +34,10 @@ std::filesystem::path write_csv(const std::filesystem::path& dir, const TidyTabl
 
 /// Write the output folder: creates `dir` (and parents) when absent, writes every table as
 /// `<dir>/<name>.csv`, then `<dir>/summary.json`. Existing files of the same names are
+/// Write one file of an output folder atomically (io::write_file_atomic); a failure becomes an
+/// InputError naming the path with key "out" (the output folder is an input of the command).
+void write_output_file(const std::filesystem::path& path, const std::string& content);
+
 /// Create the output folder `dir` (and its parents) when missing.
 /// \throws InputError (key "out") naming the folder when it cannot be created.
 void ensure_output_folder(const std::filesystem::path& dir);
