@@ -152,11 +152,18 @@ AnalysisResult analyse(const PreparedModel& model) {
             "no juveniles on the mesh (no first-year class and no size below the juvenile "
             "threshold): the juvenile survival perturbation is skipped");
 
+    // Every kernel's operator and eigen-triple are kept for the analyses below (stochastic
+    // growth uses the year kernels, the parameter sensitivities the pooled one).
+    std::vector<std::unique_ptr<kernel::KernelOperator>> ops;
+    std::vector<analysis::EigenTriple> triples;
+    triples.reserve(rates.size());
     for (std::size_t i = 0; i < rates.size(); ++i) {
         const RecruitmentParameters recruitment = baseline_recruitment(model, i);
-        const kernel::KernelOperator op(mesh,
-                                        describe_kernel(curves[i], recruitment, eviction));
-        const analysis::EigenTriple triple = analysis::dominant_eigen(op);
+        ops.push_back(std::make_unique<kernel::KernelOperator>(
+            mesh, describe_kernel(curves[i], recruitment, eviction)));
+        const kernel::KernelOperator& op = *ops.back();
+        triples.push_back(analysis::dominant_eigen(op));
+        const analysis::EigenTriple& triple = triples.back();
 
         KernelResult k;
         k.label = rates[i]->label;
@@ -267,13 +274,8 @@ AnalysisResult analyse(const PreparedModel& model) {
 
     // Stochastic growth: the census years' kernels drawn at random, each equally likely.
     if (model.stochastic_years > 0 && model.years.size() >= 2) {
-        std::vector<std::unique_ptr<kernel::KernelOperator>> ops;
         std::vector<const kernel::KernelOperator*> views;
-        for (std::size_t i = 0; i < model.years.size(); ++i) {
-            ops.push_back(std::make_unique<kernel::KernelOperator>(
-                mesh, describe_kernel(curves[i], baseline_recruitment(model, i), eviction)));
-            views.push_back(ops.back().get());
-        }
+        for (std::size_t i = 0; i < model.years.size(); ++i) views.push_back(ops[i].get());
         analysis::StochasticOptions so;
         so.years = model.stochastic_years;
         so.seed = model.stochastic_seed;
@@ -311,8 +313,8 @@ AnalysisResult analyse(const PreparedModel& model) {
     // Sensitivities of the pooled λ to a_m and e_m (kernel), c_f and h_m (chain rule).
     {
         const RecruitmentParameters r = baseline_recruitment(model, pooled_index);
-        const kernel::KernelOperator op(mesh, describe_kernel(pooled_curves, r, eviction));
-        const analysis::EigenTriple triple = analysis::dominant_eigen(op);
+        const kernel::KernelOperator& op = *ops[pooled_index];
+        const analysis::EigenTriple& triple = triples[pooled_index];
         const analysis::RecruitmentSensitivity rs = analysis::recruitment_sensitivity(op, triple);
         const Eigen::VectorXd& d_a = rs.arrival;
         const Eigen::VectorXd& d_e = rs.establishment;

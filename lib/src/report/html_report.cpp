@@ -7,7 +7,6 @@
 #include <fmt/format.h>
 
 #include "safesite/error.hpp"
-#include "safesite/io/atomic_file.hpp"
 #include "safesite/report/caution.hpp"
 #include "safesite/report/output_folder.hpp"
 #include "safesite/report/svg_chart.hpp"
