@@ -12,6 +12,7 @@
 #include "safesite/report/output_folder.hpp"
 #include "safesite/sim/census_simulation.hpp"
 #include "safesite/spec/model_spec.hpp"
+#include "support/simulated_census.hpp"
 
 using namespace safesite;
 
@@ -22,11 +23,7 @@ spec::ModelSpec ridge_truth() {
 }
 
 census::Census read_back(const spec::ModelSpec& truth, const sim::CensusSimulation& s) {
-    census::CensusOptions o;
-    o.transform = truth.size_transform;
-    o.microsites = truth.microsites.labels;
-    o.missing_row = census::MissingRowPolicy::error;
-    return census::read_census(io::CsvTable::parse(report::to_csv(s.census), "census.csv"), o);
+    return test::read_back(truth, s.census);
 }
 
 }  // namespace

@@ -21,6 +21,7 @@
 #include "safesite/sim/census_simulation.hpp"
 #include "safesite/sim/seed_experiments.hpp"
 #include "safesite/spec/model_spec.hpp"
+#include "support/simulated_census.hpp"
 
 using namespace safesite;
 namespace fs = std::filesystem;
@@ -62,11 +63,7 @@ double brute_force_trapping(const spec::TrappingTruthSpec& t, const std::string&
 }
 
 census::Census read_back(const spec::ModelSpec& truth, const sim::CensusSimulation& s) {
-    census::CensusOptions o;
-    o.transform = truth.size_transform;
-    o.microsites = truth.microsites.labels;
-    o.missing_row = census::MissingRowPolicy::error;
-    return census::read_census(io::CsvTable::parse(report::to_csv(s.census), "census.csv"), o);
+    return test::read_back(truth, s.census);
 }
 
 sim::SimulationOptions small_census(std::uint64_t seed) {
