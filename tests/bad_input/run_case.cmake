@@ -1,0 +1,52 @@
+# Runs one bad-input case (catalogue.cmake): copies SOURCES into a fresh SCRATCH folder, runs
+# EXE with ARGS there and checks the status, the first stderr line, and that the folder is
+# exactly as before (same files, same contents: no partial output, inputs unchanged).
+string(REPLACE "|" ";" args "${ARGS}")
+string(REPLACE "|" ";" sources "${SOURCES}")
+file(REMOVE_RECURSE "${SCRATCH}")
+file(MAKE_DIRECTORY "${SCRATCH}")
+foreach(src IN LISTS sources)
+  file(COPY "${src}" DESTINATION "${SCRATCH}")
+endforeach()
+
+function(snapshot out_var)
+  file(GLOB_RECURSE entries LIST_DIRECTORIES true RELATIVE "${SCRATCH}" "${SCRATCH}/*")
+  list(SORT entries)
+  set(lines "")
+  foreach(e IN LISTS entries)
+    if(IS_DIRECTORY "${SCRATCH}/${e}")
+      string(APPEND lines "${e}/\n")
+    else()
+      file(SHA256 "${SCRATCH}/${e}" h)
+      string(APPEND lines "${e} ${h}\n")
+    endif()
+  endforeach()
+  set(${out_var} "${lines}" PARENT_SCOPE)
+endfunction()
+
+snapshot(before)
+execute_process(COMMAND "${EXE}" ${args}
+                WORKING_DIRECTORY "${SCRATCH}"
+                RESULT_VARIABLE status OUTPUT_VARIABLE out ERROR_VARIABLE err)
+snapshot(after)
+
+if(NOT status EQUAL STATUS)
+  message(FATAL_ERROR "exit status ${status}, expected ${STATUS}\nstdout:\n${out}\nstderr:\n${err}")
+endif()
+string(FIND "${err}" "\n" nl)
+if(nl GREATER_EQUAL 0)
+  string(SUBSTRING "${err}" 0 ${nl} first)
+else()
+  set(first "${err}")
+endif()
+if(NOT first MATCHES "${FIRST}")
+  message(FATAL_ERROR "first stderr line does not match '${FIRST}':\n${first}\n(full stderr:\n${err})")
+endif()
+if(DEFINED STDERR AND NOT err MATCHES "${STDERR}")
+  message(FATAL_ERROR "stderr does not match '${STDERR}':\n${err}")
+endif()
+if(NOT before STREQUAL after)
+  message(FATAL_ERROR "the run changed the scratch folder (partial output or a modified input)\n"
+                      "before:\n${before}\nafter:\n${after}")
+endif()
+file(REMOVE_RECURSE "${SCRATCH}")
