@@ -1,6 +1,7 @@
 #include "safesite/arrival/binomial_fit.hpp"
 
 #include <cmath>
+#include <limits>
 #include <map>
 
 #include "safesite/error.hpp"
@@ -81,9 +82,14 @@ void fit_grouped(const stats::Design& d, const stats::Table& data, stats::Link l
     fit.groups = groups;
     for (const auto& g : groups) {
         double sd = 0.0;
+        double sd_se = std::numeric_limits<double>::quiet_NaN();
         for (const auto& vc : m.variance_components)
-            if (vc.group == g && vc.term == "(Intercept)") sd = vc.sd;
+            if (vc.group == g && vc.term == "(Intercept)") {
+                sd = vc.sd;
+                sd_se = vc.sd_se;
+            }
         fit.group_sd.push_back(sd);
+        fit.group_sd_se.push_back(sd_se);
     }
     fit.log_likelihood = m.log_likelihood;
     fit.aic = m.aic;

@@ -72,6 +72,8 @@ void add_arrival_rows(const ArrivalFit& a, FitResult& out) {
         for (std::size_t g = 0; g < fit->groups.size(); ++g) {
             CoefficientRow r{name, "all", "none", "fitted", "sd(" + fit->groups[g] + ")"};
             r.estimate = fit->group_sd[g];
+            // The SD's own standard error (empty when not available: a boundary fit).
+            if (g < fit->group_sd_se.size()) r.std_error = fit->group_sd_se[g];
             out.coefficients.push_back(r);
         }
     }

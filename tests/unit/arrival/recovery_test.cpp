@@ -158,6 +158,13 @@ TEST_CASE("trapping with a neighbour random intercept: the GLMM recovers σ_b an
     INFO("fitted neighbour SD " << fit.group_sd[0]);
     CHECK(fit.group_sd[0] == Approx(0.6).margin(0.25));
     CHECK(fit.total_group_sd() == Approx(fit.group_sd[0]).margin(1e-15));
+    // The SD's own standard error reaches the fit (it was dropped before, so coefficients.csv
+    // left it empty). Its size is checked against the precision argued above: the rough
+    // analytic value 0.055–0.08 (common practice, from memory), within a factor of 2.
+    REQUIRE(fit.group_sd_se.size() == 1);
+    INFO("se of the neighbour SD " << fit.group_sd_se[0]);
+    CHECK(fit.group_sd_se[0] > 0.03);
+    CHECK(fit.group_sd_se[0] < 0.16);
 
     auto sizes = census_sizes(seed);
     const auto tau = arr::trapping_by_form(fit, "plumed", sizes);

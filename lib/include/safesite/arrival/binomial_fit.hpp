@@ -28,6 +28,10 @@ struct BinomialFit {
     Eigen::MatrixXd covariance;             ///< Cov(β̂)
     std::vector<std::string> groups;        ///< grouping factors with a random intercept
     std::vector<double> group_sd;           ///< SD of each group's intercepts (link scale)
+    /// Standard error of each group_sd (observed information, delta method; NaN at a boundary
+    /// fit, SD = 0, or when the information is not positive definite: docs/methods/
+    /// mixed-models.md).
+    std::vector<double> group_sd_se;
     double log_likelihood = 0.0;            ///< log L (Laplace approximation for GLMMs)
     double aic = 0.0;
     int nobs = 0;                           ///< rows used
