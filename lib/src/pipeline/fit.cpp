@@ -9,6 +9,8 @@
 #include "safesite/census/transition_data.hpp"
 #include "safesite/error.hpp"
 #include "safesite/pipeline/arrival_fit.hpp"
+#include "safesite/pipeline/check.hpp"
+#include "safesite/spec/mesh_memory.hpp"
 #include "safesite/pipeline/data_rules.hpp"
 #include "safesite/pipeline/fixed_model.hpp"
 #include "safesite/pipeline/tables.hpp"
@@ -122,6 +124,8 @@ FitResult fit(const spec::ModelSpec& model, const census::Census& c,
             out.warnings.push_back("census: " + issue.message + " (" +
                                    std::to_string(issue.count) + ")");
     const census::TransitionData td = census::build_transitions(c);
+    resolve_formulas(model, td);  // every column and level, before any fitting
+    spec::require_mesh_memory(model, td.transitions.categorical("year").levels.size() + 1);
     if (td.transitions.rows() == 0)
         throw DataError({c.file(), 0, 0, "year"},
                         "the census has no transitions between consecutive census years");
