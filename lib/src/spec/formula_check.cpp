@@ -51,12 +51,24 @@ public:
     }
 
     void require_known(const std::string& name, std::size_t pos) const {
-        if (contains(m_columns.numeric, name) || contains(m_columns.categorical, name)) return;
+        if (contains(m_columns.numeric, name) || contains(m_columns.categorical, name)) {
+            if (!m_response && contains(m_columns.response_only, name)) {
+                std::vector<std::string> terms;
+                for (const auto& n : m_columns.names())
+                    if (!contains(m_columns.response_only, n)) terms.push_back(n);
+                fail(pos, "column '" + name + "' can be used only in the response here; the "
+                          "terms may read: " + list(terms));
+            }
+            return;
+        }
         const auto names = m_columns.names();
         const std::string hint = io::did_you_mean(name, names);
         fail(pos, "unknown column '" + name + "'" + (hint.empty() ? "." : hint) + " The " +
                       m_columns.table + " table has the columns: " + list(names));
     }
+
+    /// Columns read from now on are in the response or an offset (true) or in the terms.
+    void in_response(bool yes) { m_response = yes; }
 
     /// Every column node of `e` must exist and be numeric (`role` names the use).
     void numeric(const stats::NumExpr& e, const std::string& role) const {
@@ -101,6 +113,7 @@ private:
     const FormulaSource& m_source;
     const std::string& m_text;
     const FormulaColumns& m_columns;
+    bool m_response = false;
 };
 
 }  // namespace
@@ -143,7 +156,7 @@ void check_formula_text(const FormulaSource& source, const std::string& text,
         if (reason.rfind(prefix, 0) == 0) reason = reason.substr(prefix.size());
         formula_error(source, text, e.column(), reason);
     }
-    const Resolver r(source, text, columns);
+    Resolver r(source, text, columns);
     if (!f.has_response)
         formula_error(source, text, 1,
                       "no response before '~'" +
@@ -156,10 +169,13 @@ void check_formula_text(const FormulaSource& source, const std::string& text,
                           "the response is '" + f.response.text() + "'; expected '" + response +
                               "' for this rate");
     }
+    r.in_response(true);
     r.numeric(f.response.value, "the response");
     if (f.response.ratio) r.numeric(f.response.trials, "the trials of 'successes / trials'");
+    r.in_response(false);
     for (const auto& t : f.terms)
         for (const auto& a : t.atoms) r.atom(a);
+    r.in_response(true);  // an offset is not a predictor: it may read any numeric column
     for (const auto& o : f.offsets) r.numeric(o, "offset()");
 }
 

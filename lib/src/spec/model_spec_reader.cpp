@@ -443,6 +443,7 @@ FormulaColumns trapping_columns(const MicrositeSpec& ms) {
     c.table = "trapping trials";
     c.numeric = {"neighbour_size", "launched", "trapped"};
     c.categorical = {"neighbour", "form", "seed_type"};
+    c.response_only = {"launched", "trapped", "neighbour"};
     c.levels.assign(3, {});
     for (const auto& l : ms.labels)
         if (l != ms.bare) c.levels[1].push_back(l);
@@ -454,6 +455,7 @@ FormulaColumns retention_columns(const MicrositeSpec& ms) {
     c.table = "retention intervals";
     c.numeric = {"start_day", "interval_days", "left", "log_interval"};
     c.categorical = {"seed", "station", "microsite", "seed_type"};
+    c.response_only = {"start_day", "left", "log_interval", "seed", "station"};
     c.levels.assign(4, {});
     c.levels[2] = ms.labels;
     return c;

@@ -46,6 +46,9 @@ struct FormulaColumns {
     std::vector<std::string> categorical;      ///< categorical columns
     /// Known levels per categorical column (same order as `categorical`; empty: from data).
     std::vector<std::vector<std::string>> levels;
+    /// Columns (of `numeric` or `categorical`) the response may read but the terms may not
+    /// (the arrival formulas: τ and the hazard are predicted from a few columns only).
+    std::vector<std::string> response_only;
     /// All column names, numeric first.
     std::vector<std::string> names() const;
 };
