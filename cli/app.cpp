@@ -36,22 +36,25 @@ void error_line(std::ostream& err, const std::string& message) {
 std::string parse_error_message(const CLI::ParseError& e, const CLI::App* verb,
                                 const std::vector<Verb>& verbs,
                                 const std::vector<std::string>& args) {
-    if (dynamic_cast<const CLI::ExtrasError*>(&e) == nullptr) return e.what();
+    // A mistyped option explains most parse errors (an extra argument, a missing required
+    // option that was typed wrongly): say it first, whatever CLI11 stopped at.
     if (verb) {
         const std::string given = unknown_option(*verb, args);
         if (!given.empty())
             return verb->get_name() + ": unknown option " + shown_value(given) +
-                   option_hint(*verb, given) + "; the options are listed by 'safesite " +
-                   verb->get_name() + " --help'";
+                   (option_hint(*verb, given).empty() ? "." : option_hint(*verb, given)) +
+                   " See 'safesite " + verb->get_name() + " --help' for the options.";
         return e.what();
     }
+    if (dynamic_cast<const CLI::ExtrasError*>(&e) == nullptr) return e.what();
     // No verb recognised: the first word that is not an option is a mistyped verb.
     std::vector<std::string> names;
     for (const auto& v : verbs) names.push_back(v.command->get_name());
     for (const auto& a : args) {
         if (a.rfind("-", 0) == 0) continue;
-        return "unknown verb " + shown_value(a) + io::did_you_mean(a, names) +
-               "; the verbs are: check, fit, run, simulate, eval, report";
+        const std::string hint = io::did_you_mean(a, names);
+        return "unknown verb " + shown_value(a) + (hint.empty() ? "." : hint) +
+               " The verbs are: check, fit, run, simulate, eval, report.";
     }
     return e.what();
 }

@@ -20,7 +20,25 @@ namespace {
 /// (with a hint), then every column and kind as the fit will learn them.
 void resolve(const spec::FormulaSource& source, const std::string& text,
              const stats::Table& table) {
-    const stats::Formula f = stats::parse_formula(text, source.value.key);
+    stats::Formula f;
+    try {
+        f = stats::parse_formula(text, source.value.key);
+        (void)stats::DesignSpec::learn_types(f, table);
+    } catch (const stats::FormulaError& e) {
+        // Levels of ref() first (with a hint), below; other problems as the fit would see them.
+        bool level = false;
+        for (const auto& term : f.terms)
+            for (const auto& a : term.atoms)
+                level = level || (a.kind == stats::Atom::Kind::reference &&
+                                  a.level_position == e.column());
+        if (!level) {
+            std::string reason = e.reason();
+            const std::string prefix =
+                "formula '" + text + "', character " + std::to_string(e.column()) + ": ";
+            if (reason.rfind(prefix, 0) == 0) reason = reason.substr(prefix.size());
+            spec::formula_error(source, text, e.column(), reason);
+        }
+    }
     for (const auto& term : f.terms)
         for (const auto& a : term.atoms) {
             if (a.kind != stats::Atom::Kind::reference || !table.has(a.expr.name) ||
@@ -32,15 +50,6 @@ void resolve(const spec::FormulaSource& source, const std::string& text,
                                 spec::level_message(a.ref_level, a.expr.name, levels,
                                                     " in the data"));
         }
-    try {
-        (void)stats::DesignSpec::learn_types(f, table);
-    } catch (const stats::FormulaError& e) {
-        std::string reason = e.reason();
-        const std::string prefix =
-            "formula '" + text + "', character " + std::to_string(e.column()) + ": ";
-        if (reason.rfind(prefix, 0) == 0) reason = reason.substr(prefix.size());
-        spec::formula_error(source, text, e.column(), reason);
-    }
 }
 
 }  // namespace
@@ -52,10 +61,19 @@ void resolve_formulas(const spec::ModelSpec& model, const census::TransitionData
                                         ? data.transitions
                                     : rate.name == "recruit_size" ? data.recruits
                                                                   : data.plants;
-        resolve(rate.formula_source, rate.formula, table);
-        for (std::size_t i = 0; i < rate.candidates.size() && i < rate.candidate_sources.size();
-             ++i)
-            resolve(rate.candidate_sources[i], rate.candidates[i], table);
+        // A model built in code has no source locations: name the file and the key at least.
+        auto source = [&](const spec::FormulaSource* given, const std::string& key) {
+            spec::FormulaSource s = given ? *given : spec::FormulaSource{};
+            if (s.value.key.empty()) s.value = {model.file.string(), rate.at.line, 0, key};
+            return s;
+        };
+        const std::string prefix = "rates." + rate.name + ".";
+        resolve(source(&rate.formula_source, prefix + "formula"), rate.formula, table);
+        for (std::size_t i = 0; i < rate.candidates.size(); ++i)
+            resolve(source(i < rate.candidate_sources.size() ? &rate.candidate_sources[i]
+                                                             : nullptr,
+                           prefix + "candidates[" + std::to_string(i + 1) + "]"),
+                    rate.candidates[i], table);
     }
 }
 
@@ -67,9 +85,13 @@ void resolve_arrival_formulas(const spec::ModelSpec& model,
     std::vector<std::string> forms;
     for (std::size_t m = 0; m < model.microsites.labels.size(); ++m)
         if (m != model.microsites.bare_index) forms.push_back(model.microsites.labels[m]);
-    resolve(a.trapping_formula_source, a.trapping_formula,
+    auto source = [&](spec::FormulaSource s, const std::string& key) {
+        if (s.value.key.empty()) s.value = {model.file.string(), a.at.line, 0, key};
+        return s;
+    };
+    resolve(source(a.trapping_formula_source, "arrival.trapping_formula"), a.trapping_formula,
             arrival::trapping_table(trapping.trials, forms));
-    resolve(a.retention_formula_source, a.retention_formula,
+    resolve(source(a.retention_formula_source, "arrival.retention_formula"), a.retention_formula,
             arrival::interval_table(arrival::retention_intervals(retention.checks),
                                     model.microsites.labels));
 }

@@ -12,10 +12,11 @@ namespace safesite::spec {
 
 namespace {
 
-/// Doubles per n² (the estimate is this times 8 n²).
+/// Doubles per n² (the estimate is this times 8 n²): K·C for the kernels kept, 4·C² for the
+/// dense matrices of the life-history step (which also covers the 4·C of the mesh check).
 double per_square(std::size_t classes, std::size_t kernels) {
     const auto c = static_cast<double>(classes), k = static_cast<double>(kernels);
-    return k * c + std::max(3.0 * c * c, 4.0 * c);
+    return k * c + 4.0 * c * c;
 }
 
 std::string bytes_text(double bytes) {

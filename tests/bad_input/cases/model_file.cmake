@@ -54,7 +54,7 @@ safesite_bad_input(NAME model-level-out-of-range ARGS "check|inputs/model-level-
                    STATUS 3 FIRST "${E}level-out-of-range.toml:39:9: 'uncertainty.level'")
 # [mesh]: memory limit, unknown keys, wrong types.
 safesite_bad_input(NAME model-mesh-too-big ARGS "run|inputs/model-mesh-too-big.toml|--out|out"
-                   STATUS 3 FIRST "${E}mesh-too-big.toml:9:10: 'mesh.points' = 10000 .*GB.*1443 points")
+                   STATUS 3 FIRST "${E}mesh-too-big.toml:9:10: 'mesh.points' = 10000 .*GB.*1265 points")
 safesite_bad_input(NAME model-mesh-huge ARGS "check|inputs/model-mesh-huge.toml"
                    STATUS 3 FIRST "${E}mesh-huge.toml:9:10: 'mesh.points' = 10000000 ")
 safesite_bad_input(NAME model-mesh-unknown-key ARGS "check|inputs/model-mesh-unknown-key.toml"

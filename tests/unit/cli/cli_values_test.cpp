@@ -8,6 +8,8 @@
 #include <filesystem>
 #include <fstream>
 #include <random>
+#include <set>
+#include <utility>
 #include <sstream>
 #include <string>
 #include <vector>
@@ -178,4 +180,80 @@ TEST_CASE("check prints the memory estimate of the kernels", "[cli][unit]") {
     // per transition year plus the pooled one.
     CHECK(has(o.out, "kernels: 100 points × 6 classes × "));
     CHECK(has(o.out, " MB"));
+}
+
+TEST_CASE("print_coordinates: no output shows a plant's coordinates, whatever its value",
+          "[cli][unit]") {
+    // docs/formats.md, "Coordinates": no output of check or fit holds plant-level rows, so the
+    // census's x, y appear nowhere, with print_coordinates false (the default) or true.
+    std::ifstream in(source("models/ridge.toml"));
+    std::stringstream text;
+    text << in.rdbuf();
+    std::string model = text.str();
+    for (const char* file : {"census", "trapping", "retention"}) {
+        const std::string from = std::string(file) + " = \"../demo/" + file + ".csv\"";
+        model.replace(model.find(from), from.size(),
+                      std::string(file) + " = \"" + source("demo/" + std::string(file) + ".csv") +
+                          "\"");
+    }
+    // The census's coordinate pairs as written there ("x,y" at the end of each row).
+    std::ifstream census(source("demo/census.csv"));
+    std::string row;
+    std::getline(census, row);  // header: ...,x,y
+    REQUIRE(row.substr(row.size() - 4) == ",x,y");
+    // Pairs of x, y with at least four characters each (e.g. "0.31", "5.72"), so that a
+    // chance match of two short numbers side by side in an output is unlikely.
+    std::set<std::pair<std::string, std::string>> pairs;
+    while (std::getline(census, row)) {
+        const auto last = row.rfind(',');
+        const auto before = row.rfind(',', last - 1);
+        const std::string x = row.substr(before + 1, last - before - 1), y = row.substr(last + 1);
+        if (x.size() >= 4 && y.size() >= 4) pairs.insert({x, y});
+    }
+    REQUIRE(pairs.size() > 100);
+    for (const std::string value : {"false", "true"}) {
+        INFO("print_coordinates = " << value);
+        const fs::path dir = fs::temp_directory_path() /
+                             ("safesite-cli-coords-" + std::to_string(std::random_device{}()));
+        fs::create_directories(dir);
+        std::string m = model;
+        const std::string key = "print_coordinates = false";
+        m.replace(m.find(key), key.size(), "print_coordinates = " + value);
+        const std::string reps = "replicates = 99";
+        m.replace(m.find(reps), reps.size(), "replicates = 0");
+        std::ofstream(dir / "m.toml") << m;
+        const Outcome checked = run({"check", (dir / "m.toml").string()});
+        REQUIRE(checked.status == 0);
+        const Outcome fitted = run({"fit", (dir / "m.toml").string(), "--out", (dir / "out").string()});
+        REQUIRE(fitted.status == 0);
+        std::string all = checked.out + checked.err + fitted.out + fitted.err;
+        for (const auto& entry : fs::recursive_directory_iterator(dir / "out")) {
+            if (!entry.is_regular_file()) continue;
+            std::ifstream f(entry.path(), std::ios::binary);
+            std::stringstream ss;
+            ss << f.rdbuf();
+            const std::string content = ss.str();
+            // No table has an x or y column (CSV header fields).
+            const std::string header = content.substr(0, content.find('\n'));
+            CHECK_FALSE(has("," + header + ",", ",x,"));
+            CHECK_FALSE(has("," + header + ",", ",y,"));
+            all += content;
+        }
+        // Tokens of every output (CSV fields, JSON values, words), then adjacent token pairs.
+        std::vector<std::string> tokens;
+        std::string token;
+        for (const char c : all) {
+            if (std::string(",; \t\r\n\"[]{}:|").find(c) != std::string::npos) {
+                if (!token.empty()) tokens.push_back(token);
+                token.clear();
+            } else {
+                token += c;
+            }
+        }
+        std::size_t found = 0;
+        for (std::size_t i = 0; i + 1 < tokens.size(); ++i)
+            found += pairs.count({tokens[i], tokens[i + 1]});
+        CHECK(found == 0);
+        fs::remove_all(dir);
+    }
 }

@@ -250,24 +250,23 @@ TEST_CASE("replicates: the least for the level and the most, with file:line and 
 
 TEST_CASE("the memory estimate of the kernels and the mesh limit", "[spec][unit]") {
     using safesite::spec::mesh_memory_bytes;
-    // bytes = 8 (K C n^2 + max(3 C^2 n^2, 4 C n^2)), by hand:
-    // n = 100, C = 6, K = 10: 8 (60 + 108) 10^4 = 13 440 000.
-    CHECK(mesh_memory_bytes(100, 6, 10) == Approx(13440000.0).margin(0.5));
-    // C = 1: the mesh check (4 C n^2) exceeds the life-history matrices (3 C^2 n^2).
+    // bytes = 8 (K C + 4 C^2) n^2, by hand:
+    // n = 100, C = 6, K = 10: 8 (60 + 144) 10^4 = 16 320 000.
+    CHECK(mesh_memory_bytes(100, 6, 10) == Approx(16320000.0).margin(0.5));
     CHECK(mesh_memory_bytes(10, 1, 2) == Approx(8.0 * (2.0 + 4.0) * 100.0).margin(1e-9));
 
     const auto m = parse_model_spec(k_base, "m.toml");
     // Three microsites with the seedling class (the defaults) are six classes.
     CHECK(safesite::spec::kernel_classes(m) == 6);
     const auto est = safesite::spec::mesh_memory(m, 2);
-    // Largest n with 8 (2·6 + 3·36) n^2 <= 2e9: floor(sqrt(2e9 / 960)) = 1443.
-    CHECK(est.largest_points == 1443);
+    // Largest n with 8 (2·6 + 4·36) n^2 <= 2e9: floor(sqrt(2e9 / 1248)) = 1265.
+    CHECK(est.largest_points == 1265);
 
     const auto text = replace(k_base, "points = 50", "points = 10000");
     const auto e = refused(text);
     CHECK(e.key() == "mesh.points");
     CHECK(e.line() == line_of(text, "points = 10000"));
-    CHECK(mentions(e, "1443"));
-    CHECK_NOTHROW(parse_model_spec(replace(k_base, "points = 50", "points = 1443"), "m.toml"));
-    CHECK(refused(replace(k_base, "points = 50", "points = 1444")).key() == "mesh.points");
+    CHECK(mentions(e, "1265"));
+    CHECK_NOTHROW(parse_model_spec(replace(k_base, "points = 50", "points = 1265"), "m.toml"));
+    CHECK(refused(replace(k_base, "points = 50", "points = 1266")).key() == "mesh.points");
 }

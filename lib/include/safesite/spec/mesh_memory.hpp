@@ -6,10 +6,11 @@
 /// With n mesh points, C continuous classes (microsites, twice that with a seedling class) and
 /// K kernels kept for the analyses (one per transition year, and the pooled one), the largest
 /// blocks of doubles alive at once are the K kernel operators (C blocks of n × n each), plus
-/// either the three dense (C·n)² matrices of the life-history step (P, I − P and its LU
-/// factors) or the kernel of the mesh check on 2n points (C blocks of 2n × 2n):
+/// the dense (C·n)² matrices of the life-history step (P, I − P, its LU factors, and one more
+/// found by measurement), which also covers the kernel of the mesh check on 2n points
+/// (C blocks of 2n × 2n):
 ///
-///     bytes ≈ 8 · (K·C·n² + max(3·C²·n², 4·C·n²))
+///     bytes ≈ 8 · (K·C + 4·C²) · n²
 ///
 /// The bootstrap holds this once more per worker thread.
 
@@ -33,7 +34,7 @@ struct MeshMemory {
 /// The limit on the estimate: 2 GB (2·10⁹ bytes).
 inline constexpr double k_mesh_memory_limit = 2e9;
 
-/// bytes ≈ 8 · (K·C·n² + max(3·C²·n², 4·C·n²)).
+/// bytes ≈ 8 · (K·C + 4·C²) · n².
 double mesh_memory_bytes(std::size_t points, std::size_t classes, std::size_t kernels);
 
 /// The continuous classes of `model`'s kernels: the microsites, twice as many with a seedling
