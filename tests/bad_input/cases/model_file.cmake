@@ -62,3 +62,6 @@ safesite_bad_input(NAME model-mesh-unknown-key ARGS "check|inputs/model-mesh-unk
 safesite_bad_input(NAME model-mesh-wrong-type ARGS "check|inputs/model-mesh-wrong-type.toml"
                    STATUS 3 FIRST "${E}mesh-wrong-type.toml:9:10: 'mesh.points' must be an integer")
 unset(E)
+# fit reads the seed experiments before fitting, so a level only they lack stops it first.
+safesite_bad_input(NAME model-formula-seed-type-level-fit ARGS "fit|inputs/model-formula-seed-type-level.toml"
+                   STATUS 3 FIRST "^safesite: error: inputs/model-formula-seed-type-level.toml:43:64: 'arrival.trapping_formula'.*'bristly'")
