@@ -46,10 +46,12 @@ CLI::Validator integer_range(std::int64_t lo, std::int64_t hi) {
         [lo, hi, expected](std::string& text) -> std::string {
             const bool negative = !text.empty() && text[0] == '-';
             const std::size_t digits_from = negative ? 1 : 0;
-            const bool digits = text.size() > digits_from &&
-                                std::all_of(text.begin() + static_cast<std::ptrdiff_t>(digits_from),
-                                            text.end(), [](char c) { return c >= '0' && c <= '9'; });
-            if (!digits) return "value " + shown_value(text) + " is not a whole number; " + expected;
+            const auto first = text.begin() + static_cast<std::ptrdiff_t>(digits_from);
+            const bool digits =
+                text.size() > digits_from &&
+                std::all_of(first, text.end(), [](char c) { return c >= '0' && c <= '9'; });
+            if (!digits)
+                return "value " + shown_value(text) + " is not a whole number; " + expected;
             std::int64_t v = 0;
             const auto res = std::from_chars(text.data(), text.data() + text.size(), v);
             // Past the 64-bit range (a 20-digit number): out of range whatever the bounds.

@@ -41,7 +41,9 @@ Outcome run(const std::vector<std::string>& args) {
 std::string source(const std::string& rel) { return std::string(SAFESITE_SOURCE_DIR) + "/" + rel; }
 
 bool starts(const std::string& s, const std::string& prefix) { return s.rfind(prefix, 0) == 0; }
-bool has(const std::string& s, const std::string& part) { return s.find(part) != std::string::npos; }
+bool has(const std::string& s, const std::string& part) {
+    return s.find(part) != std::string::npos;
+}
 
 }  // namespace
 
@@ -224,7 +226,8 @@ TEST_CASE("print_coordinates: no output shows a plant's coordinates, whatever it
         std::ofstream(dir / "m.toml") << m;
         const Outcome checked = run({"check", (dir / "m.toml").string()});
         REQUIRE(checked.status == 0);
-        const Outcome fitted = run({"fit", (dir / "m.toml").string(), "--out", (dir / "out").string()});
+        const Outcome fitted =
+            run({"fit", (dir / "m.toml").string(), "--out", (dir / "out").string()});
         REQUIRE(fitted.status == 0);
         std::string all = checked.out + checked.err + fitted.out + fitted.err;
         for (const auto& entry : fs::recursive_directory_iterator(dir / "out")) {

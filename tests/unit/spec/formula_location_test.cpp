@@ -213,7 +213,8 @@ retention_formula = "left ~ microsite"
         CHECK(refused(text).column() == column_of(text, "gravel)"));
     }
     {
-        const auto text = replace(good, "\"left ~ microsite\"", "\"left ~ ref(microsite, tusock)\"");
+        const auto text =
+            replace(good, "\"left ~ microsite\"", "\"left ~ ref(microsite, tusock)\"");
         const auto e = refused(text);
         CHECK(e.key() == "arrival.retention_formula");
         CHECK(e.column() == column_of(text, "tusock"));
