@@ -9,7 +9,9 @@
 
 #include <CLI/CLI.hpp>
 
+#include "options.hpp"
 #include "safesite/error.hpp"
+#include "safesite/io/near_match.hpp"
 #include "safesite/version.hpp"
 #include "verbs.hpp"
 
@@ -27,6 +29,34 @@ constexpr const char* k_description =
 
 void error_line(std::ostream& err, const std::string& message) {
     err << "safesite: error: " << message << "\n";
+}
+
+/// CLI11's message, or ours for a mistyped option or verb with a "did you mean" from the
+/// options of the verb (`verb`, or nothing before a verb) or from the verb names.
+std::string parse_error_message(const CLI::ParseError& e, const CLI::App* verb,
+                                const std::vector<Verb>& verbs,
+                                const std::vector<std::string>& args) {
+    // A mistyped option explains most parse errors (an extra argument, a missing required
+    // option that was typed wrongly): say it first, whatever CLI11 stopped at.
+    if (verb) {
+        const std::string given = unknown_option(*verb, args);
+        if (!given.empty())
+            return verb->get_name() + ": unknown option " + shown_value(given) +
+                   (option_hint(*verb, given).empty() ? "." : option_hint(*verb, given)) +
+                   " See 'safesite " + verb->get_name() + " --help' for the options.";
+        return e.what();
+    }
+    if (dynamic_cast<const CLI::ExtrasError*>(&e) == nullptr) return e.what();
+    // No verb recognised: the first word that is not an option is a mistyped verb.
+    std::vector<std::string> names;
+    for (const auto& v : verbs) names.push_back(v.command->get_name());
+    for (const auto& a : args) {
+        if (a.rfind("-", 0) == 0) continue;
+        const std::string hint = io::did_you_mean(a, names);
+        return "unknown verb " + shown_value(a) + (hint.empty() ? "." : hint) +
+               " The verbs are: check, fit, run, simulate, eval, report.";
+    }
+    return e.what();
 }
 
 }  // namespace
@@ -76,11 +106,11 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream& e
         out << app.help("", CLI::AppFormatMode::All);
         return exit_ok;
     } catch (const CLI::ParseError& e) {
-        error_line(err, e.what());
         const Verb* v = nullptr;
         for (const auto& cand : verbs) {
             if (cand.command->parsed()) v = &cand;
         }
+        error_line(err, parse_error_message(e, v ? v->command : nullptr, verbs, args));
         if (v) {
             err << "Usage: " << v->usage << "\nRun 'safesite " << v->command->get_name()
                 << " --help' for its options.\n";

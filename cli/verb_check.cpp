@@ -28,6 +28,7 @@ int run_check(const CheckOptions& o, const Streams& io) {
     const auto tables = pipeline::check_tables(result);
     const auto info = run_info("check", o.model, model, std::nullopt, {}, {});
     io.out << "census: " << result.census_file << "\n";
+    if (result.memory) io.out << "kernels: " << spec::describe(*result.memory) << "\n";
     report::TextOptions text;
     text.max_rows = 60;
     io.out << report::render_summary(

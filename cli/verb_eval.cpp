@@ -7,6 +7,7 @@
 #include <CLI/CLI.hpp>
 
 #include "common.hpp"
+#include "options.hpp"
 #include "safesite/pipeline/run.hpp"
 #include "safesite/report/output_folder.hpp"
 #include "safesite/report/text_summary.hpp"
@@ -80,9 +81,8 @@ Verb add_eval_verb(CLI::App& app) {
     cmd->add_option("MODEL", o->model, "model file (TOML) with coefficients for every rate")
         ->required();
     cmd->add_option("--out", o->out, "also write every output table to DIR")->type_name("DIR");
-    cmd->add_option("--top", o->top, "number of elasticities to print (default 10)")
-        ->type_name("K")
-        ->check(CLI::Range(1, 1000));
+    add_integer(cmd, "--top", o->top, 1, 1000, "number of elasticities to print (default 10)")
+        ->type_name("K");
     return {cmd, "safesite eval MODEL [--out DIR] [--top K]",
             [o](const Streams& io) { return run_eval(*o, io); }};
 }

@@ -5,8 +5,10 @@
 #include <ostream>
 
 #include <CLI/CLI.hpp>
+#include <fmt/format.h>
 
 #include "common.hpp"
+#include "options.hpp"
 #include "safesite/pipeline/bootstrap.hpp"
 #include "safesite/pipeline/run.hpp"
 #include "safesite/report/figures.hpp"
@@ -30,7 +32,17 @@ struct RunOptions {
 int run_run(const RunOptions& o, const Streams& io) {
     spec::ModelSpec model = load_model(o.model);
     if (o.seed) model.uncertainty.seed = *o.seed;
-    if (o.replicates) model.uncertainty.replicates = *o.replicates;
+    if (o.replicates) {
+        // The fewest replicates depend on the model file's level: checked here, before any work.
+        const std::size_t least = spec::min_replicates(model.uncertainty.level);
+        if (*o.replicates > 0 && *o.replicates < least)
+            throw UsageError("--replicates: value '" + std::to_string(*o.replicates) +
+                             "' is too few for percentile intervals at level " +
+                             fmt::format("{}", model.uncertainty.level) +
+                             " ([uncertainty] level); expected 0 (no intervals) or at least " +
+                             std::to_string(least));
+        model.uncertainty.replicates = *o.replicates;
+    }
     progress(io, "fitting the vital rates and building the kernels");
     const pipeline::RunResult result = pipeline::run(model);
     auto tables = pipeline::run_tables(result);
@@ -93,18 +105,18 @@ Verb add_run_verb(CLI::App& app) {
     cmd->add_option("--out", o->out,
                     "output folder (default: [output] dir of the model file, relative to it)")
         ->type_name("DIR");
-    cmd->add_option("--seed", o->seed,
-                    "random seed of the bootstrap (overrides [uncertainty] seed)")
+    add_integer(cmd, "--seed", o->seed, 0, static_cast<std::int64_t>(spec::k_max_seed),
+                "random seed of the bootstrap (overrides [uncertainty] seed)")
         ->type_name("S");
-    cmd->add_option("--replicates", o->replicates,
-                    "bootstrap replicates for confidence intervals (overrides [uncertainty] "
-                    "replicates; 0: none)")
+    add_integer(cmd, "--replicates", o->replicates, 0,
+                static_cast<std::int64_t>(spec::k_max_replicates),
+                "bootstrap replicates for confidence intervals (overrides [uncertainty] "
+                "replicates; 0: none; at least 41 for 95 % intervals, docs/cli.md)")
         ->type_name("B");
-    cmd->add_option("--threads", o->threads,
-                    "worker threads of the bootstrap (default: all hardware threads; results "
-                    "do not depend on it)")
-        ->type_name("T")
-        ->check(CLI::Range(1u, 1024u));
+    add_integer(cmd, "--threads", o->threads, 1, 1024,
+                "worker threads of the bootstrap (default: all hardware threads; results "
+                "do not depend on it)")
+        ->type_name("T");
     return {cmd, "safesite run MODEL [--out DIR] [--seed S] [--replicates B] [--threads T]",
             [o](const Streams& io) { return run_run(*o, io); }};
 }

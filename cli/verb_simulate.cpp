@@ -11,6 +11,7 @@
 #include <fmt/format.h>
 
 #include "common.hpp"
+#include "options.hpp"
 #include "safesite/arrival/retention_data.hpp"
 #include "safesite/arrival/trapping_data.hpp"
 #include "safesite/error.hpp"
@@ -130,37 +131,34 @@ Verb add_simulate_verb(CLI::App& app) {
                     "arrives by the true arrival chain. Same seed, same files.");
     cmd->add_option("TRUTH", o->truth, "truth model file (TOML) with coefficients for every rate")
         ->required();
-    cmd->add_option("--plants", o->sim.plants, "tagged plants at the first census")
+    add_integer(cmd, "--plants", o->sim.plants, 1, 1000000, "tagged plants at the first census")
         ->type_name("N")
-        ->required()
-        ->check(CLI::Range(1, 1000000));
-    cmd->add_option("--years", o->sim.years, "census years (at least 2)")
+        ->required();
+    add_integer(cmd, "--years", o->sim.years, 2, 200, "census years")
         ->type_name("Y")
-        ->required()
-        ->check(CLI::Range(2, 200));
-    cmd->add_option("--seed", o->sim.seed, "random seed")->type_name("S")->required();
+        ->required();
+    add_integer(cmd, "--seed", o->sim.seed, 0, static_cast<std::int64_t>(spec::k_max_seed),
+                "random seed")
+        ->type_name("S")
+        ->required();
     cmd->add_option("--out", o->out, "folder to write the files to (created when absent)")
         ->type_name("DIR")
         ->required();
-    cmd->add_option("--first-year", o->sim.first_year, "label of the first census year (2015)")
+    add_integer(cmd, "--first-year", o->sim.first_year, 1, 9999,
+                "label of the first census year (2015)")
         ->type_name("YEAR");
-    cmd->add_option("--plots", o->sim.plots, "number of plots (8)")
-        ->type_name("K")
-        ->check(CLI::Range(1, 10000));
-    cmd->add_option("--burn-in", o->sim.burn_in,
-                    "untagged years simulated before the first census (15)")
-        ->type_name("B")
-        ->check(CLI::Range(0, 1000));
-    cmd->add_option("--notfound-rate", o->sim.notfound_rate,
-                    "probability that an alive plant is not found in a census (0.02)")
-        ->type_name("P")
-        ->check(CLI::Range(0.0, 0.99));
-    cmd->add_option("--missing-seed-rate", o->sim.missing_seed_rate,
-                    "probability that a flowering plant's seeds are not counted (0.05)")
-        ->type_name("P")
-        ->check(CLI::Range(0.0, 1.0));
-    cmd->add_option("--max-new-per-plot", o->sim.max_new_per_plot,
-                    "most recruits newly tagged per plot and year; 0 = no cap (0)")
+    add_integer(cmd, "--plots", o->sim.plots, 1, 10000, "number of plots (8)")->type_name("K");
+    add_integer(cmd, "--burn-in", o->sim.burn_in, 0, 1000,
+                "untagged years simulated before the first census (15)")
+        ->type_name("B");
+    add_decimal(cmd, "--notfound-rate", o->sim.notfound_rate, 0.0, 0.99,
+                "probability that an alive plant is not found in a census (0.02)")
+        ->type_name("P");
+    add_decimal(cmd, "--missing-seed-rate", o->sim.missing_seed_rate, 0.0, 1.0,
+                "probability that a flowering plant's seeds are not counted (0.05)")
+        ->type_name("P");
+    add_integer(cmd, "--max-new-per-plot", o->sim.max_new_per_plot, 0, 1000000,
+                "most recruits newly tagged per plot and year; 0 = no cap (0)")
         ->type_name("K");
     cmd->add_flag("--no-coordinates", o->no_coordinates, "leave out the x, y columns");
     return {cmd, "safesite simulate TRUTH --plants N --years Y --seed S --out DIR [options]",

@@ -53,7 +53,7 @@ safesite_cli_case(NAME eval-needs-fixed-rates ARGS "eval|models/ridge.toml" STAT
 safesite_cli_case(NAME demo-check ARGS "check|models/ridge.toml" STATUS 0
                   STDOUT "census_years.*2015.*Caution")
 safesite_cli_case(NAME demo-run
-                  ARGS "run|models/ridge.toml|--out|${CMAKE_CURRENT_BINARY_DIR}/demo-out|--replicates|3|--threads|2" STATUS 0
+                  ARGS "run|models/ridge.toml|--out|${CMAKE_CURRENT_BINARY_DIR}/demo-out|--replicates|41|--threads|2" STATUS 0
                   STDOUT "arrival_chain.*lambda.*2015.*pooled.*intervals.*scenario_delta_lambda"
                   FILES "${CMAKE_CURRENT_BINARY_DIR}/demo-out/lambda.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/summary.json|${CMAKE_CURRENT_BINARY_DIR}/demo-out/coefficients.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/arrival_chain.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/intervals.csv|${CMAKE_CURRENT_BINARY_DIR}/demo-out/figures/lambda_by_year.svg|${CMAKE_CURRENT_BINARY_DIR}/demo-out/figures/retention_curves.svg|${CMAKE_CURRENT_BINARY_DIR}/demo-out/report.html")
 set_tests_properties(cli:demo-run PROPERTIES FIXTURES_SETUP demo_out)

@@ -9,8 +9,92 @@
 
 #include "safesite/error.hpp"
 #include "safesite/io/csv_table.hpp"
+#include "safesite/stats/design_spec.hpp"
+#include "safesite/stats/formula.hpp"
 
 namespace safesite::pipeline {
+
+namespace {
+
+/// One formula of the model file against the table its fit sees: the levels of ref() first
+/// (with a hint), then every column and kind as the fit will learn them.
+void resolve(const spec::FormulaSource& source, const std::string& text,
+             const stats::Table& table) {
+    stats::Formula f;
+    try {
+        f = stats::parse_formula(text, source.value.key);
+        (void)stats::DesignSpec::learn_types(f, table);
+    } catch (const stats::FormulaError& e) {
+        // Levels of ref() first (with a hint), below; other problems as the fit would see them.
+        bool level = false;
+        for (const auto& term : f.terms)
+            for (const auto& a : term.atoms)
+                level = level || (a.kind == stats::Atom::Kind::reference &&
+                                  a.level_position == e.column());
+        if (!level) {
+            std::string reason = e.reason();
+            const std::string prefix =
+                "formula '" + text + "', character " + std::to_string(e.column()) + ": ";
+            if (reason.rfind(prefix, 0) == 0) reason = reason.substr(prefix.size());
+            spec::formula_error(source, text, e.column(), reason);
+        }
+    }
+    for (const auto& term : f.terms)
+        for (const auto& a : term.atoms) {
+            if (a.kind != stats::Atom::Kind::reference || !table.has(a.expr.name) ||
+                !table.is_categorical(a.expr.name))
+                continue;
+            const auto& levels = table.categorical(a.expr.name).levels;
+            if (std::find(levels.begin(), levels.end(), a.ref_level) != levels.end()) continue;
+            spec::formula_error(source, text, a.level_position,
+                                spec::level_message(a.ref_level, a.expr.name, levels,
+                                                    " in the data"));
+        }
+}
+
+}  // namespace
+
+void resolve_formulas(const spec::ModelSpec& model, const census::TransitionData& data) {
+    for (const auto& rate : model.rates) {
+        if (rate.is_fixed()) continue;
+        const stats::Table& table = rate.name == "survival" || rate.name == "growth"
+                                        ? data.transitions
+                                    : rate.name == "recruit_size" ? data.recruits
+                                                                  : data.plants;
+        // A model built in code has no source locations: name the file and the key at least.
+        auto source = [&](const spec::FormulaSource* given, const std::string& key) {
+            spec::FormulaSource s = given ? *given : spec::FormulaSource{};
+            if (s.value.key.empty()) s.value = {model.file.string(), rate.at.line, 0, key};
+            return s;
+        };
+        const std::string prefix = "rates." + rate.name + ".";
+        resolve(source(&rate.formula_source, prefix + "formula"), rate.formula, table);
+        for (std::size_t i = 0; i < rate.candidates.size(); ++i)
+            resolve(source(i < rate.candidate_sources.size() ? &rate.candidate_sources[i]
+                                                             : nullptr,
+                           prefix + "candidates[" + std::to_string(i + 1) + "]"),
+                    rate.candidates[i], table);
+    }
+}
+
+void resolve_arrival_formulas(const spec::ModelSpec& model,
+                              const arrival::TrappingData& trapping,
+                              const arrival::RetentionData& retention) {
+    const spec::ArrivalSpec& a = model.arrival;
+    if (a.method != spec::ArrivalMethod::experiments) return;
+    std::vector<std::string> forms;
+    for (std::size_t m = 0; m < model.microsites.labels.size(); ++m)
+        if (m != model.microsites.bare_index) forms.push_back(model.microsites.labels[m]);
+    auto source = [&](spec::FormulaSource s, const std::string& key) {
+        if (s.value.key.empty()) s.value = {model.file.string(), a.at.line, 0, key};
+        return s;
+    };
+    resolve(source(a.trapping_formula_source, "arrival.trapping_formula"), a.trapping_formula,
+            arrival::trapping_table(trapping.trials, forms));
+    resolve(source(a.retention_formula_source, "arrival.retention_formula"), a.retention_formula,
+            arrival::interval_table(arrival::retention_intervals(retention.checks),
+                                    model.microsites.labels));
+}
 
 CheckResult check(const spec::ModelSpec& model) {
     if (!model.data.census)
@@ -23,6 +107,14 @@ CheckResult check(const spec::ModelSpec& model) {
     out.microsites = model.microsites.labels;
     out.report = c.report();
     out.summary = c.summary();
+    // Formulas against the census tables: only a census without errors has them.
+    if (out.valid()) {
+        const census::TransitionData td = census::build_transitions(c);
+        resolve_formulas(model, td);
+        const std::size_t kernels = td.transitions.categorical("year").levels.size() + 1;
+        out.memory = spec::mesh_memory(model, kernels);
+        spec::require_mesh_memory(model, kernels);
+    }
     if (model.arrival.method == spec::ArrivalMethod::experiments && model.data.trapping &&
         model.data.retention) {
         std::vector<std::string> forms;
@@ -32,6 +124,7 @@ CheckResult check(const spec::ModelSpec& model) {
             arrival::read_trapping(*model.data.trapping, forms, model.data.trapping_columns);
         out.retention = arrival::read_retention(*model.data.retention, model.microsites.labels,
                                                 model.data.retention_columns);
+        resolve_arrival_formulas(model, *out.trapping, *out.retention);
     }
     return out;
 }

@@ -9,6 +9,8 @@
 #include "safesite/census/transition_data.hpp"
 #include "safesite/error.hpp"
 #include "safesite/pipeline/arrival_fit.hpp"
+#include "safesite/pipeline/check.hpp"
+#include "safesite/spec/mesh_memory.hpp"
 #include "safesite/pipeline/data_rules.hpp"
 #include "safesite/pipeline/fixed_model.hpp"
 #include "safesite/pipeline/tables.hpp"
@@ -113,6 +115,11 @@ FitResult fit(const spec::ModelSpec& model) {
         return fit_given(model);
     }
     const census::Census c = census::load_census(*model.data.census, spec::to_census_options(model));
+    if (model.arrival.method == spec::ArrivalMethod::experiments) {
+        // Read the experiments first, so that a bad file or formula stops before any fitting.
+        const ExperimentData e = read_experiments(model);
+        return fit(model, c, &e);
+    }
     return fit(model, c);
 }
 
@@ -124,6 +131,10 @@ FitResult fit(const spec::ModelSpec& model, const census::Census& c,
             out.warnings.push_back("census: " + issue.message + " (" +
                                    std::to_string(issue.count) + ")");
     const census::TransitionData td = census::build_transitions(c);
+    resolve_formulas(model, td);  // every column and level, before any fitting
+    if (experiments)
+        resolve_arrival_formulas(model, experiments->trapping, experiments->retention);
+    spec::require_mesh_memory(model, td.transitions.categorical("year").levels.size() + 1);
     if (td.transitions.rows() == 0)
         throw DataError({c.file(), 0, 0, "year"},
                         "the census has no transitions between consecutive census years");

@@ -9,6 +9,8 @@
 #include <toml++/toml.h>
 
 #include "safesite/io/near_match.hpp"
+#include "safesite/spec/formula_source.hpp"
+#include "safesite/spec/mesh_memory.hpp"
 #include "safesite/spec/model_spec.hpp"
 
 namespace safesite::spec {
@@ -57,6 +59,7 @@ std::string fmt_number(double x) {
 /// State shared by all readers of one file.
 struct Context {
     std::string file;
+    std::string_view text;       // the file's text (to place errors inside string values)
     std::set<std::string> keys;  // generic key paths present (no array indices)
 
     [[noreturn]] void fail(const toml::source_region& where, const std::string& key,
@@ -383,27 +386,105 @@ void check_groups(const TableReader& r, std::string_view k, const Keys& groups,
     }
 }
 
-void check_formula(const TableReader& r, std::string_view k, const std::string& f,
-                   const char* response) {
-    const auto tilde = f.find('~');
-    if (tilde == std::string::npos || f.find('~', tilde + 1) != std::string::npos)
-        r.fail(k, "'" + r.key(k) + "' = \"" + f +
-                      "\" is not a formula; expected one '~', e.g. \"response ~ size\"");
-    auto trim = [](std::string s) {
-        const auto b = s.find_first_not_of(" \t");
-        const auto e = s.find_last_not_of(" \t");
-        return b == std::string::npos ? std::string() : s.substr(b, e - b + 1);
-    };
-    const std::string lhs = trim(f.substr(0, tilde));
-    const std::string rhs = trim(f.substr(tilde + 1));
-    if (lhs.empty() || rhs.empty())
-        r.fail(k, "'" + r.key(k) + "' = \"" + f + "\" needs a response and terms around '~'");
-    if (response && lhs != response)
-        r.fail(k, "'" + r.key(k) + "' = \"" + f + "\" has response '" + lhs +
-                      "'; expected '" + response + "' for this rate");
+/// Where the string value `n` stands in the file; its text is verbatim on the line when the
+/// characters after the opening quote are exactly the string followed by the same quote.
+FormulaSource formula_source(const Context& ctx, const toml::node& n, const std::string& key) {
+    FormulaSource out;
+    out.value = ctx.at(n.source(), key);
+    if (!n.is_string() || out.value.line == 0 || out.value.column == 0) return out;
+    const std::string& value = n.as_string()->get();
+    std::size_t start = 0;
+    for (std::size_t line = 1; line < out.value.line; ++line) {
+        start = ctx.text.find('\n', start);
+        if (start == std::string_view::npos) return out;
+        ++start;
+    }
+    // toml++ counts columns in characters (UTF-8 code points), from 1.
+    std::size_t at = start, column = 1;
+    while (column < out.value.column && at < ctx.text.size() && ctx.text[at] != '\n') {
+        ++at;
+        while (at < ctx.text.size() && (static_cast<unsigned char>(ctx.text[at]) & 0xC0) == 0x80)
+            ++at;
+        ++column;
+    }
+    if (at >= ctx.text.size() || (ctx.text[at] != '"' && ctx.text[at] != '\'')) return out;
+    const char quote = ctx.text[at];
+    if (ctx.text.substr(at + 1, value.size()) == value &&
+        ctx.text.substr(at + 1 + value.size(), 1) == std::string_view(&quote, 1) &&
+        value.find('\n') == std::string::npos)
+        out.text_column = out.value.column + 1;
+    return out;
 }
 
-RateSpec read_rate(const TableReader& r, const std::string& name, Context& ctx) {
+/// The columns of the table each vital rate is fitted on (census/transition_data.hpp).
+FormulaColumns rate_columns(const std::string& rate, const MicrositeSpec& ms) {
+    FormulaColumns c;
+    if (rate == "survival" || rate == "growth") {
+        c.table = "transitions";
+        c.numeric = {"size", "size_next", "survived", "flowered", "seeds", "seedling"};
+        c.categorical = {"microsite", "year", "plot", "plant"};
+    } else if (rate == "flowering" || rate == "seeds") {
+        c.table = "plants";
+        c.numeric = {"size", "flowered", "seeds", "seedling"};
+        c.categorical = {"microsite", "year", "plot", "plant"};
+    } else {
+        c.table = "recruits";
+        c.numeric = {"size"};
+        c.categorical = {"microsite", "year", "plot"};
+    }
+    c.levels.assign(c.categorical.size(), {});
+    c.levels[0] = ms.labels;
+    return c;
+}
+
+/// The columns of the trapping trials and of the retention intervals (arrival/*_data.hpp).
+FormulaColumns trapping_columns(const MicrositeSpec& ms) {
+    FormulaColumns c;
+    c.table = "trapping trials";
+    c.numeric = {"neighbour_size", "launched", "trapped"};
+    c.categorical = {"neighbour", "form", "seed_type"};
+    c.response_only = {"launched", "trapped", "neighbour"};
+    c.levels.assign(3, {});
+    for (const auto& l : ms.labels)
+        if (l != ms.bare) c.levels[1].push_back(l);
+    return c;
+}
+
+FormulaColumns retention_columns(const MicrositeSpec& ms) {
+    FormulaColumns c;
+    c.table = "retention intervals";
+    c.numeric = {"start_day", "interval_days", "left", "log_interval"};
+    c.categorical = {"seed", "station", "microsite", "seed_type"};
+    c.response_only = {"start_day", "left", "log_interval", "seed", "station"};
+    c.levels.assign(4, {});
+    c.levels[2] = ms.labels;
+    return c;
+}
+
+/// Parse and resolve the formula under key `k` (a string) or each formula of an array.
+void check_formula(const TableReader& r, std::string_view k, const FormulaColumns& columns,
+                   const std::string& response, const Context& ctx,
+                   std::vector<FormulaSource>* sources = nullptr) {
+    const toml::node* n = r.table().get(k);
+    if (!n) return;
+    if (n->is_array()) {
+        std::size_t i = 0;
+        for (const toml::node& e : *n->as_array()) {
+            ++i;
+            const FormulaSource src =
+                formula_source(ctx, e, r.key(k) + "[" + std::to_string(i) + "]");
+            check_formula_text(src, e.as_string()->get(), columns, response);
+            if (sources) sources->push_back(src);
+        }
+        return;
+    }
+    const FormulaSource src = formula_source(ctx, *n, r.key(k));
+    check_formula_text(src, n->as_string()->get(), columns, response);
+    if (sources) sources->push_back(src);
+}
+
+RateSpec read_rate(const TableReader& r, const std::string& name, const MicrositeSpec& ms,
+                   Context& ctx) {
     r.allow({"family", "link", "formula", "candidates", "year", "groups", "random_slope",
              "spread", "coefficients", "sd", "spread_coefficients", "theta", "year_sd"});
     RateSpec rate;
@@ -433,10 +514,15 @@ RateSpec read_rate(const TableReader& r, const std::string& name, Context& ctx) 
     const char* response = response_of(name);
     rate.formula = r.required_string("formula", std::string("e.g. \"") + response + " ~ size\"");
     rate.formula_at = r.location("formula");
-    check_formula(r, "formula", rate.formula, response);
+    const FormulaColumns columns = rate_columns(name, ms);
+    std::vector<FormulaSource> sources;
+    check_formula(r, "formula", columns, response, ctx, &sources);
+    rate.formula_source = sources.front();
     if (auto c = r.strings("candidates")) {
-        for (const auto& f : *c) check_formula(r, "candidates", f, response);
+        sources.clear();
+        check_formula(r, "candidates", columns, response, ctx, &sources);
         rate.candidates = *c;
+        rate.candidate_sources = sources;
     }
 
     if (auto y = r.choice("year", {"none", "fixed", "random"}))
@@ -527,7 +613,6 @@ RateSpec read_rate(const TableReader& r, const std::string& name, Context& ctx) 
             r.missing("year_sd", "a fixed rate with year = \"random\" needs the SD of the year "
                                  "intercepts");
     }
-    (void)ctx;
     return rate;
 }
 
@@ -584,9 +669,12 @@ ArrivalSpec read_arrival(const TableReader& r, const MicrositeSpec& ms, const Co
     a.seed_type = r.required_string("seed_type", "the focal seed type");
     a.trapping_formula = r.required_string("trapping_formula", "e.g. \"trapped / launched ~ "
                                                                "form\"");
-    check_formula(r, "trapping_formula", a.trapping_formula, nullptr);
+    std::vector<FormulaSource> sources;
+    check_formula(r, "trapping_formula", trapping_columns(ms), "", ctx, &sources);
     a.retention_formula = r.required_string("retention_formula", "e.g. \"left ~ microsite\"");
-    check_formula(r, "retention_formula", a.retention_formula, nullptr);
+    check_formula(r, "retention_formula", retention_columns(ms), "", ctx, &sources);
+    a.trapping_formula_source = sources.at(0);
+    a.retention_formula_source = sources.at(1);
     if (auto g = r.strings("trapping_groups")) {
         check_groups(r, "trapping_groups", *g, {"neighbour", "form", "seed_type"});
         a.trapping_groups = *g;
@@ -847,6 +935,7 @@ MeshSpec read_mesh(const TableReader& r) {
             r.fail("points", "'mesh.points' = " + std::to_string(*n) +
                                  " is out of range; expected an integer ≥ 2");
         mesh.points = static_cast<std::size_t>(*n);
+        mesh.points_at = r.location("points");
     }
     if (auto s = r.choice("rule", {"midpoint", "gauss-legendre"}))
         mesh.rule = *s == "midpoint" ? QuadratureRule::midpoint : QuadratureRule::gauss_legendre;
@@ -930,19 +1019,36 @@ PerturbationSpec read_perturbation(const TableReader& r, bool census_flags_seedl
 UncertaintySpec read_uncertainty(const TableReader& r) {
     r.allow({"replicates", "seed", "level"});
     UncertaintySpec u;
-    if (auto n = r.integer("replicates")) {
-        if (*n < 0) r.fail("replicates", "'uncertainty.replicates' must be ≥ 0");
-        u.replicates = static_cast<std::size_t>(*n);
-    }
-    if (auto n = r.integer("seed")) {
-        if (*n < 0) r.fail("seed", "'uncertainty.seed' must be ≥ 0");
-        u.seed = static_cast<std::uint64_t>(*n);
-    }
     if (auto l = r.number("level")) {
         if (!(*l > 0.0 && *l < 1.0))
             r.fail("level", "'uncertainty.level' = " + fmt_number(*l) +
                                 " is out of range; expected 0 < level < 1");
         u.level = *l;
+    }
+    if (auto n = r.integer("replicates")) {
+        u.replicates_at = r.location("replicates");
+        const auto most = static_cast<std::int64_t>(k_max_replicates);
+        const auto least = static_cast<std::int64_t>(min_replicates(u.level));
+        if (*n < 0 || *n > most)
+            r.fail("replicates", "'uncertainty.replicates' = " + std::to_string(*n) +
+                                     " is out of range; expected 0 (no intervals) or an integer "
+                                     "from " + std::to_string(least) + " to " +
+                                     std::to_string(most));
+        if (*n > 0 && *n < least)
+            r.fail("replicates",
+                   "'uncertainty.replicates' = " + std::to_string(*n) +
+                       " is too few for percentile intervals at level " + fmt_number(u.level) +
+                       "; expected 0 (no intervals) or at least " + std::to_string(least) +
+                       " (with fewer, an end of the interval is the most extreme replicate "
+                       "or lies next to it)");
+        u.replicates = static_cast<std::size_t>(*n);
+    }
+    if (auto n = r.integer("seed")) {
+        if (*n < 0)
+            r.fail("seed", "'uncertainty.seed' = " + std::to_string(*n) +
+                               " is out of range; expected an integer from 0 to " +
+                               std::to_string(k_max_seed));
+        u.seed = static_cast<std::uint64_t>(*n);
     }
     return u;
 }
@@ -1014,7 +1120,7 @@ ModelSpec read_document(const toml::table& doc, const std::filesystem::path& fil
                 throw SpecError({ctx.file, r.location().line, 0, "rates." + name},
                                 "missing table [rates." + name + "]; every vital rate (" +
                                     list(rate_names()) + ") needs one");
-            spec.rates.push_back(read_rate(*t, name, ctx));
+            spec.rates.push_back(read_rate(*t, name, spec.microsites, ctx));
         }
     }
     if (auto r = root.table("establishment"))
@@ -1061,6 +1167,9 @@ ModelSpec read_document(const toml::table& doc, const std::filesystem::path& fil
             read_experiment_truth(*r, arrival_reader, spec.arrival, spec.microsites, ctx);
 
     check_data_needs(spec, ctx);
+    // The least a run keeps is two kernels (one transition year and the pooled one); fit and
+    // check refuse again with the census's number of years.
+    require_mesh_memory(spec, 2);
     spec.keys.assign(ctx.keys.begin(), ctx.keys.end());
     return spec;
 }
@@ -1077,6 +1186,12 @@ std::optional<std::size_t> MicrositeSpec::index(std::string_view label) const {
     for (std::size_t i = 0; i < labels.size(); ++i)
         if (labels[i] == label) return i;
     return std::nullopt;
+}
+
+std::size_t min_replicates(double level) {
+    // ⌈2/(1 − level)⌉ with a tolerance, so that level 0.95 gives 40 (not 41 from rounding).
+    const double tails = 2.0 / (1.0 - level);
+    return static_cast<std::size_t>(std::ceil(tails - 1e-9)) + 1;
 }
 
 const RateSpec& ModelSpec::rate(std::string_view name) const {
@@ -1109,6 +1224,7 @@ const char* to_string(EvictionPolicy e) noexcept {
 ModelSpec parse_model_spec(std::string_view text, const std::filesystem::path& file) {
     Context ctx;
     ctx.file = file.string();
+    ctx.text = text;
     toml::table doc;
     try {
         doc = toml::parse(text, ctx.file);

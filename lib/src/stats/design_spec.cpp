@@ -156,8 +156,9 @@ DesignSpec DesignSpec::learn_impl(const Formula& formula, const Table& data,
                 if (it == la.levels.end()) {
                     std::string lv;
                     for (const auto& l : la.levels) lv += (lv.empty() ? "" : ", ") + l;
-                    formula_fail(f, atom.position, "'" + atom.ref_level + "' is not a level of '" +
-                                                       e.name + "'; the levels are: " + lv);
+                    formula_fail(f, atom.level_position > 0 ? atom.level_position : atom.position,
+                                 "'" + atom.ref_level + "' is not a level of '" + e.name +
+                                     "'; the levels are: " + lv);
                 }
                 std::rotate(la.levels.begin(), it, it + 1);
             } else if (atom.kind == Atom::Kind::value && plain && data.is_categorical(e.name)) {

@@ -384,6 +384,7 @@ private:
                 fail(lev.pos, "expected the reference level (a name, number or \"quoted\" text)");
             next();
             atom.ref_level = lev.text;
+            atom.level_position = lev.pos;
             expect(Tok::rparen, "')' closing ref(");
         } else if (t.text == "orthpoly") {
             next();

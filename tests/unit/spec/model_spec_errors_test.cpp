@@ -235,7 +235,7 @@ TEST_CASE("vital-rate rules: links, formulas, fixed values, year handling, group
           "rates.seeds.formula");
     CHECK(rate_edit("formula = \"seeds ~ size\"",
                     "formula = \"seeds ~ size\"\ncandidates = [\"seeds ~ \"]")
-              .key() == "rates.seeds.candidates");
+              .key() == "rates.seeds.candidates[1]");  // entries counted from 1
     CHECK(rate_edit("formula = \"seeds ~ size\"", "formula = \"seeds ~ size\"\ntheta = 2.0")
               .key() == "rates.seeds.theta");
     CHECK(rate_edit("formula = \"size ~ microsite\"",

@@ -7,6 +7,7 @@
 #include <vector>
 
 #include "safesite/error.hpp"
+#include "safesite/spec/formula_source.hpp"
 
 namespace safesite::spec {
 
@@ -37,6 +38,9 @@ struct ArrivalSpec {
     /// "left ~ ..." on the interval table; offset(log(interval_days)) is added by arrival.
     std::string retention_formula;
     std::vector<std::string> retention_groups;
+    /// Where the two formulas stand in the model file (method = experiments).
+    FormulaSource trapping_formula_source;
+    FormulaSource retention_formula_source;
 
     SourceLocation at;  ///< the [arrival] table
 };

@@ -54,6 +54,7 @@ struct MeshSpec {
     std::optional<double> lower;  ///< given L; else data minimum − margin·range
     std::optional<double> upper;  ///< given U; else data maximum + margin·range (L < U)
     double margin = 0.1;          ///< ≥ 0, used only for derived bounds
+    SourceLocation points_at;     ///< where `points` is given (line 0: the default)
 };
 
 /// `[microsites]`: the labels in the order used everywhere (vectors indexed by microsite),
@@ -84,11 +85,23 @@ struct PerturbationSpec {
     std::vector<double> survival_changes;       ///< proportional changes, each ≥ −1
 };
 
+/// Most bootstrap replicates accepted (model file and command line; docs/cli.md, "Ranges").
+inline constexpr std::size_t k_max_replicates = 10000;
+/// Largest seed accepted (model file and command line): 2^63 − 1, the largest TOML integer.
+inline constexpr std::uint64_t k_max_seed = 9223372036854775807ULL;
+
+/// The fewest bootstrap replicates B for percentile intervals at `level`: with fewer, an end of
+/// the interval is the most extreme replicate or lies between the two most extreme, i.e. the
+/// type-7 quantile at p = (1 − level)/2 needs (B − 1)·p ≥ 1: B = ⌈2/(1 − level)⌉ + 1
+/// (41 for level 0.95, 21 for 0.90, 201 for 0.99). 0 < level < 1.
+std::size_t min_replicates(double level);
+
 /// `[uncertainty]`: bootstrap settings.
 struct UncertaintySpec {
     std::size_t replicates = 0;
     std::uint64_t seed = 1;
     double level = 0.95;  ///< 0 < level < 1
+    SourceLocation replicates_at;  ///< where `replicates` is given (line 0: not given)
 };
 
 /// `[output]`.

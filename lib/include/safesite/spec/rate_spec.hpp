@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "safesite/error.hpp"
+#include "safesite/spec/formula_source.hpp"
 
 namespace safesite::spec {
 
@@ -55,6 +56,10 @@ struct RateSpec {
     /// formula naming an unknown column: throw SpecError(formula_at, ...)).
     SourceLocation at;
     SourceLocation formula_at;
+    /// Where `formula` and each of `candidates` stand in the file (errors at a character of
+    /// the user's text: formula_error()).
+    FormulaSource formula_source;
+    std::vector<FormulaSource> candidate_sources;
 
     bool is_fixed() const noexcept { return coefficients.has_value(); }
 };

@@ -58,6 +58,7 @@ struct Atom {
     Kind kind = Kind::value;
     NumExpr expr;                 ///< the argument (for reference: the column)
     std::string ref_level;        ///< reference level (Kind::reference)
+    std::size_t level_position = 0;  ///< 1-based character position of ref_level in the text
     int degree = 0;               ///< k of orthpoly
     int df = 0;                   ///< columns of nspline: given df, or interior knots + 1
     std::vector<double> knots;    ///< interior knots of nspline when given explicitly
