@@ -57,8 +57,9 @@ TrappingData trapping_from_csv(const io::CsvTable& csv, const std::vector<std::s
         t.trapped = csv.integer(r, c_trapped);
         if (t.trapped < 0 || t.trapped > t.launched)
             throw csv.error_at(r, c_trapped,
-                               "trapped " + quoted_short(csv.cell(r, c_trapped)) + " of neighbour " +
-                                   quoted_short(t.neighbour) + "; expected 0 ≤ trapped ≤ launched (" +
+                               "trapped " + quoted_short(csv.cell(r, c_trapped)) +
+                                   " of neighbour " + quoted_short(t.neighbour) +
+                                   "; expected 0 ≤ trapped ≤ launched (" +
                                    std::to_string(t.launched) + ")");
         auto [it, fresh] = form_of.emplace(t.neighbour, std::make_pair(t.form, t.line));
         if (!fresh && it->second.first != t.form)
@@ -68,8 +69,8 @@ TrappingData trapping_from_csv(const io::CsvTable& csv, const std::vector<std::s
                                               std::to_string(it->second.second));
         auto [jt, first] = seen.emplace(std::make_pair(t.neighbour, t.seed_type), t.line);
         if (!first)
-            throw csv.error_at(r, c_type, "neighbour " + quoted_short(t.neighbour) + " and seed type " +
-                                              quoted_short(t.seed_type) +
+            throw csv.error_at(r, c_type, "neighbour " + quoted_short(t.neighbour) +
+                                              " and seed type " + quoted_short(t.seed_type) +
                                               " already have a trial on line " +
                                               std::to_string(jt->second) +
                                               "; expected one row per neighbour × seed type");

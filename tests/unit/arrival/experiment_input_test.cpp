@@ -52,8 +52,9 @@ TEST_CASE("missing-value markers in experiment counts are located", "[arrival][u
     CHECK(t.column() == 6);
     CHECK(t.key() == "trapped");
     const auto r = refused([] {
-        (void)arr::parse_retention(retention_header + "s1,g1,gravel,plumed,0,1\n"
-                                                      "s1,g1,gravel,plumed,.,1\n",
+        (void)arr::parse_retention(retention_header +
+                                       "s1,g1,gravel,plumed,0,1\n"
+                                       "s1,g1,gravel,plumed,.,1\n",
                                    microsites, "r");
     });
     CHECK(r.line() == 3);

@@ -104,8 +104,10 @@ TEST_CASE("one bad cell in a plant's first row gives one error and no follow-on 
 
 TEST_CASE("malformed coordinates are one counted warning, not a stop", "[census][unit]") {
     std::string text = with_xy(base());
-    text = edit(text, "C,2019,P1,cushion,0.5,alive,0,,1,1,1", "C,2019,P1,cushion,0.5,alive,0,,1,12;5,NA");
-    text = edit(text, "E,2020,P2,cushion,0.3,alive,0,,1,1,1", "E,2020,P2,cushion,0.3,alive,0,,1,x,1");
+    text = edit(text, "C,2019,P1,cushion,0.5,alive,0,,1,1,1",
+                "C,2019,P1,cushion,0.5,alive,0,,1,12;5,NA");
+    text =
+        edit(text, "E,2020,P2,cushion,0.3,alive,0,,1,1,1", "E,2020,P2,cushion,0.3,alive,0,,1,x,1");
     const Census c = read(text);
     CHECK(c.valid());
     const auto& w = issue(c, "bad_coordinate");
@@ -120,7 +122,8 @@ TEST_CASE("malformed coordinates are one counted warning, not a stop", "[census]
 }
 
 TEST_CASE("missing-value markers in numeric columns are located bad values", "[census][unit]") {
-    std::string text = edit(base(), "D,2018,P2,gravel,4.0,alive,1,20,0", "D,2018,P2,gravel,4.0,alive,1,NA,0");
+    std::string text =
+        edit(base(), "D,2018,P2,gravel,4.0,alive,1,20,0", "D,2018,P2,gravel,4.0,alive,1,NA,0");
     text = edit(text, "A,2020,P1,gravel,,dead", "A,2020,P1,gravel,.,dead");
     const Census c = read(text);
     const auto& bad = issue(c, "bad_value");
@@ -202,7 +205,8 @@ TEST_CASE("alive without size: policy error, and a flowering plant without size 
 
 TEST_CASE("alive after dead: error by default, or the dead row read as not found",
           "[census][unit]") {
-    std::string text = edit(base(), "A,2019,P1,gravel,3.0,alive,1,12,0", "A,2019,P1,gravel,,dead,,,0");
+    std::string text =
+        edit(base(), "A,2019,P1,gravel,3.0,alive,1,12,0", "A,2019,P1,gravel,,dead,,,0");
     text = edit(text, "A,2020,P1,gravel,,dead,,,0", "A,2020,P1,gravel,2.5,alive,0,,0");
     CHECK(issue(read(text), "alive_after_dead").severity == Severity::error);
 

@@ -126,7 +126,10 @@ TEST_CASE("missing-value markers are refused with the cell's location", "[io][un
 
 TEST_CASE("text that is not UTF-8 CSV is refused at a location", "[io][unit]") {
     SECTION("UTF-16 little-endian with its byte-order mark") {
-        const std::string text("\xFF\xFE" "a\0,\0b\0\n\0", 10);
+        const std::string text(
+            "\xFF\xFE"
+            "a\0,\0b\0\n\0",
+            10);
         CHECK(parse_error(text).line() == 1);
     }
     SECTION("UTF-16 big-endian") {
