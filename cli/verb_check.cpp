@@ -33,7 +33,7 @@ int run_check(const CheckOptions& o, const Streams& io) {
     text.max_rows = 60;
     io.out << report::render_summary(
         pick_tables(tables, {"census_years", "census_microsites", "census_gaps",
-                             "trapping_summary", "retention_summary"}),
+                             "census_policies", "trapping_summary", "retention_summary"}),
         info, text);
     return 0;
 }

@@ -9,6 +9,7 @@
 #include "arrival/detail/csv_text.hpp"
 #include "safesite/error.hpp"
 #include "safesite/io/csv_table.hpp"
+#include "safesite/io/quoted.hpp"
 
 namespace safesite::arrival {
 namespace {
@@ -36,6 +37,13 @@ RetentionData retention_from_csv(const io::CsvTable& csv,
     const std::size_t c_present = csv.require("present", columns);
     const std::set<std::string> known(microsites.begin(), microsites.end());
 
+    if (csv.rows() == 0)
+        throw DataError({csv.file(), csv.header_line(), 0, ""},
+                        "the retention file has a header but no data rows; expected one row per "
+                        "seed per check below the header (docs/formats.md, \"Retention "
+                        "checks\")");
+
+    using io::quoted_short;
     RetentionData data;
     data.file = csv.file();
     data.checks.reserve(csv.rows());
@@ -46,27 +54,28 @@ RetentionData retention_from_csv(const io::CsvTable& csv,
         c.seed = csv.text(r, c_seed);
         c.station = csv.text(r, c_station);
         c.microsite = csv.text(r, c_micro);
+        const std::string seed = "seed " + quoted_short(c.seed);
         if (known.count(c.microsite) == 0)
-            throw csv.error_at(r, c_micro, "seed \"" + c.seed + "\": microsite \"" +
-                                               c.microsite + "\" is not a microsite; expected "
-                                               "one of " + detail::quoted_list(microsites));
+            throw csv.error_at(r, c_micro, seed + ": microsite " + quoted_short(c.microsite) +
+                                               " is not a microsite; expected one of " +
+                                               detail::quoted_list(microsites));
         c.seed_type = csv.text(r, c_type);
         c.day = csv.real(r, c_day);
         if (c.day < 0.0)
-            throw csv.error_at(r, c_day, "seed \"" + c.seed + "\": day \"" + csv.cell(r, c_day) +
-                                             "\"; expected days since placement ≥ 0");
+            throw csv.error_at(r, c_day, seed + ": day " + quoted_short(csv.cell(r, c_day)) +
+                                             "; expected days since placement ≥ 0");
         c.present = csv.flag(r, c_present);
 
         auto it = seeds.find(c.seed);
         if (it == seeds.end()) {
             // First row of a seed: the placement, day 0, present.
             if (c.day != 0.0)
-                throw csv.error_at(r, c_day, "seed \"" + c.seed + "\" has no day-0 placement: "
-                                             "its first check is day " + csv.cell(r, c_day) +
+                throw csv.error_at(r, c_day, seed + " has no day-0 placement: its first check "
+                                             "is day " + quoted_short(csv.cell(r, c_day)) +
                                              "; expected a first row with day 0");
             if (!c.present)
-                throw csv.error_at(r, c_present, "seed \"" + c.seed + "\" is absent at day 0; "
-                                                 "a placed seed must be present at placement");
+                throw csv.error_at(r, c_present, seed + " is absent at day 0; a placed seed "
+                                                 "must be present at placement");
             SeedState s;
             s.first_row = r;
             s.station = c.station;
@@ -81,25 +90,26 @@ RetentionData retention_from_csv(const io::CsvTable& csv,
             auto same = [&](const std::string& now, const std::string& before, std::size_t col,
                             const char* what) {
                 if (now != before)
-                    throw csv.error_at(r, col, "seed \"" + c.seed + "\": " + what + " \"" + now +
-                                                   "\" differs from \"" + before + "\" on line " +
+                    throw csv.error_at(r, col, seed + ": " + what + " " + quoted_short(now) +
+                                                   " differs from " + quoted_short(before) +
+                                                   " on line " +
                                                    std::to_string(csv.line(s.first_row)));
             };
             same(c.station, s.station, c_station, "station");
             same(c.microsite, s.microsite, c_micro, "microsite");
             same(c.seed_type, s.seed_type, c_type, "seed type");
             if (!(c.day > s.last_day))
-                throw csv.error_at(r, c_day, "seed \"" + c.seed + "\": day " +
-                                                 csv.cell(r, c_day) + " does not follow day " +
+                throw csv.error_at(r, c_day, seed + ": day " + quoted_short(csv.cell(r, c_day)) +
+                                                 " does not follow day " +
                                                  detail::csv_number(s.last_day) + " on line " +
                                                  std::to_string(s.last_line) +
                                                  "; expected strictly increasing days");
             if (c.present && !s.last_present)
-                throw csv.error_at(r, c_present, "seed \"" + c.seed + "\" is present again on "
-                                                 "day " + csv.cell(r, c_day) + " after it was "
-                                                 "absent on line " +
-                                                 std::to_string(s.absent_line) +
-                                                 "; a departed seed cannot return");
+                throw csv.error_at(r, c_present, seed + " is present again on day " +
+                                                     quoted_short(csv.cell(r, c_day)) +
+                                                     " after it was absent on line " +
+                                                     std::to_string(s.absent_line) +
+                                                     "; a departed seed cannot return");
             s.last_day = c.day;
             s.last_line = c.line;
             if (!c.present && s.last_present) s.absent_line = c.line;

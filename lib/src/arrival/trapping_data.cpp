@@ -8,6 +8,7 @@
 #include "arrival/detail/csv_text.hpp"
 #include "safesite/error.hpp"
 #include "safesite/io/csv_table.hpp"
+#include "safesite/io/quoted.hpp"
 
 namespace safesite::arrival {
 
@@ -21,6 +22,13 @@ TrappingData trapping_from_csv(const io::CsvTable& csv, const std::vector<std::s
     const std::size_t c_trapped = csv.require("trapped", columns);
     const std::set<std::string> known(forms.begin(), forms.end());
 
+    if (csv.rows() == 0)
+        throw DataError({csv.file(), csv.header_line(), 0, ""},
+                        "the trapping file has a header but no data rows; expected one row per "
+                        "neighbour × seed type below the header (docs/formats.md, \"Trapping "
+                        "trials\")");
+
+    using io::quoted_short;
     TrappingData data;
     data.file = csv.file();
     data.trials.reserve(csv.rows());
@@ -32,34 +40,38 @@ TrappingData trapping_from_csv(const io::CsvTable& csv, const std::vector<std::s
         t.neighbour = csv.text(r, c_neighbour);
         t.form = csv.text(r, c_form);
         if (known.count(t.form) == 0)
-            throw csv.error_at(r, c_form, "form \"" + t.form + "\" of neighbour \"" +
-                                              t.neighbour + "\" is not a neighbour microsite; "
-                                              "expected one of " + detail::quoted_list(forms));
+            throw csv.error_at(r, c_form, "form " + quoted_short(t.form) + " of neighbour " +
+                                              quoted_short(t.neighbour) +
+                                              " is not a neighbour microsite; expected one of " +
+                                              detail::quoted_list(forms));
         t.neighbour_size = csv.real(r, c_size);
         if (!(t.neighbour_size > 0.0))
-            throw csv.error_at(r, c_size, "neighbour_size \"" + csv.cell(r, c_size) +
-                                              "\" of neighbour \"" + t.neighbour +
-                                              "\"; expected a size > 0");
+            throw csv.error_at(r, c_size, "neighbour_size " + quoted_short(csv.cell(r, c_size)) +
+                                              " of neighbour " + quoted_short(t.neighbour) +
+                                              "; expected a size > 0");
         t.seed_type = csv.text(r, c_type);
         t.launched = csv.integer(r, c_launched);
         if (t.launched <= 0)
-            throw csv.error_at(r, c_launched, "launched \"" + csv.cell(r, c_launched) +
-                                                  "\"; expected a whole number > 0");
+            throw csv.error_at(r, c_launched, "launched " + quoted_short(csv.cell(r, c_launched)) +
+                                                  "; expected a whole number > 0");
         t.trapped = csv.integer(r, c_trapped);
         if (t.trapped < 0 || t.trapped > t.launched)
             throw csv.error_at(r, c_trapped,
-                               "trapped \"" + csv.cell(r, c_trapped) + "\" of neighbour \"" +
-                                   t.neighbour + "\"; expected 0 ≤ trapped ≤ launched (" +
+                               "trapped " + quoted_short(csv.cell(r, c_trapped)) +
+                                   " of neighbour " + quoted_short(t.neighbour) +
+                                   "; expected 0 ≤ trapped ≤ launched (" +
                                    std::to_string(t.launched) + ")");
         auto [it, fresh] = form_of.emplace(t.neighbour, std::make_pair(t.form, t.line));
         if (!fresh && it->second.first != t.form)
-            throw csv.error_at(r, c_form, "neighbour \"" + t.neighbour + "\" has form \"" +
-                                              t.form + "\" here but \"" + it->second.first +
-                                              "\" on line " + std::to_string(it->second.second));
+            throw csv.error_at(r, c_form, "neighbour " + quoted_short(t.neighbour) + " has form " +
+                                              quoted_short(t.form) + " here but " +
+                                              quoted_short(it->second.first) + " on line " +
+                                              std::to_string(it->second.second));
         auto [jt, first] = seen.emplace(std::make_pair(t.neighbour, t.seed_type), t.line);
         if (!first)
-            throw csv.error_at(r, c_type, "neighbour \"" + t.neighbour + "\" and seed type \"" +
-                                              t.seed_type + "\" already have a trial on line " +
+            throw csv.error_at(r, c_type, "neighbour " + quoted_short(t.neighbour) +
+                                              " and seed type " + quoted_short(t.seed_type) +
+                                              " already have a trial on line " +
                                               std::to_string(jt->second) +
                                               "; expected one row per neighbour × seed type");
         data.trials.push_back(std::move(t));

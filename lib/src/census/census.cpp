@@ -9,6 +9,7 @@
 #include <set>
 
 #include "safesite/io/near_match.hpp"
+#include "safesite/io/quoted.hpp"
 
 namespace safesite::census {
 
@@ -16,7 +17,8 @@ namespace {
 
 constexpr double k_nan = std::numeric_limits<double>::quiet_NaN();
 
-std::string q(const std::string& s) { return "\"" + s + "\""; }
+/// A value quoted for a message, cut to 40 characters with its length (io/quoted.hpp).
+std::string q(std::string_view s) { return io::quoted_short(s); }
 
 /// Issue codes and their messages in words (docs/methods/census.md lists them).
 struct Code {
@@ -27,7 +29,28 @@ struct Code {
 constexpr Code k_bad_value{Severity::error, "bad_value",
                            "a cell cannot be read as the type of its column"};
 constexpr Code k_missing_value{Severity::error, "missing_value",
-                               "a plant recorded alive has no size or no flowering record"};
+                               "a plant recorded alive has no flowering record"};
+constexpr Code k_missing_size{Severity::error, "missing_size",
+                              "a plant recorded alive has no size (census.alive_without_size = "
+                              "\"error\"); measure it, or set census.alive_without_size = "
+                              "\"keep\" in the model file to keep such rows for survival and "
+                              "flowering and leave them out where size is needed"};
+constexpr Code k_alive_without_size{Severity::warning, "alive_without_size",
+                                    "a plant recorded alive has no size; the row counts for "
+                                    "survival, flowering and counts, and is left out of every "
+                                    "fit that needs its size (census.alive_without_size = "
+                                    "\"keep\"; \"error\" refuses such rows)"};
+constexpr Code k_seeds_unknown{Severity::error, "seeds_unknown",
+                               "a flowering plant has neither a size nor a seed count, so its "
+                               "seeds can be neither counted nor predicted from size; give the "
+                               "seed count or the size"};
+constexpr Code k_bad_coordinate{Severity::warning, "bad_coordinate",
+                                "a coordinate (x or y) cannot be read as a number; coordinates "
+                                "are used by no computation, the cell is ignored"};
+constexpr Code k_dead_read_notfound{Severity::warning, "dead_read_as_notfound",
+                                    "a plant recorded dead is alive in a later year; the dead "
+                                    "row is read as not found (census.alive_after_dead = "
+                                    "\"notfound\")"};
 constexpr Code k_bad_status{Severity::error, "bad_status",
                             "status is not one of alive, dead, notfound"};
 constexpr Code k_unknown_microsite{Severity::error, "unknown_microsite",
@@ -39,7 +62,10 @@ constexpr Code k_seeds_no_flower{Severity::error, "seeds_without_flowering",
 constexpr Code k_duplicate{Severity::error, "duplicate_row",
                            "a plant has more than one row in one census year"};
 constexpr Code k_alive_after_dead{Severity::error, "alive_after_dead",
-                                  "a plant is recorded alive after being recorded dead"};
+                                  "a plant is recorded alive after being recorded dead; correct "
+                                  "the record, or set census.alive_after_dead = \"notfound\" in "
+                                  "the model file to read the dead row as not found (values: "
+                                  "\"error\", the default, or \"notfound\")"};
 constexpr Code k_microsite_changed{Severity::error, "microsite_changed",
                                    "a plant changes microsite; plants are sessile and keep "
                                    "the microsite they arrived in"};
@@ -109,12 +135,18 @@ Census read_census(const io::CsvTable& table, CensusOptions options) {
     const auto col_y = table.locate("y", map);
     const auto col_neighbour = table.locate("neighbour_size", map);
     assert(!options.bare || *options.bare < labels.size());
+    if (table.rows() == 0)
+        throw DataError({table.file(), table.header_line(), 0, ""},
+                        "the census has a header but no data rows; expected one row per plant "
+                        "per census year below the header (docs/formats.md, \"Census\")");
 
     // 1. Type every row; a row with an unreadable cell is reported and left out, but its
     //    plant, year and plot still count as "a row exists" for the missing-row rule.
     std::vector<CensusRecord> records;
     std::set<std::pair<std::string, int>> rows_seen;  // (plant, year) of every row
     std::map<std::string, std::set<int>> plot_years;  // plot → years with any row
+    std::set<std::string> tainted;  // plants with a row left out for an error
+    std::size_t left_out = 0;       // rows left out for an error
     for (std::size_t row = 0; row < table.rows(); ++row) {
         bool ok = true;
         auto cell = [&](auto read) {
@@ -179,11 +211,20 @@ Census read_census(const io::CsvTable& table, CensusOptions options) {
         // Size and flowering: required when alive; read (for type errors only) otherwise.
         r.raw_size = k_nan;
         r.size = k_nan;
+        bool no_size = false;  // alive, size empty, kept (alive_without_size = keep)
+        const auto no_size_text = [&] {
+            return "plant " + q(r.plant) + " is alive in " + std::to_string(r.year) +
+                   " but has no size";
+        };
         if (alive && table.empty(row, col_size)) {
-            add(report, k_missing_value,
-                where(col_size, "plant " + q(r.plant) + " is alive in " +
-                                    std::to_string(r.year) + " but has no size"));
-            ok = false;
+            if (options.alive_without_size == AliveWithoutSize::error) {
+                add(report, k_missing_size,
+                    where(col_size, no_size_text() + "; to keep such rows, set "
+                                                     "census.alive_without_size = \"keep\""));
+                ok = false;
+            } else {
+                no_size = true;  // counted below if the row is otherwise readable
+            }
         } else if (auto x = cell([&] { return table.optional_real(row, col_size); })) {
             r.raw_size = *x;
             if (alive) {
@@ -227,8 +268,17 @@ Census read_census(const io::CsvTable& table, CensusOptions options) {
         if (col_seedling != k_absent)
             r.seedling = cell([&] { return table.optional_flag(row, col_seedling); })
                              .value_or(false);
-        if (col_x) r.x = cell([&] { return table.optional_real(row, *col_x); });
-        if (col_y) r.y = cell([&] { return table.optional_real(row, *col_y); });
+        // Coordinates feed no computation: a bad one is a warning, never a stop.
+        auto coordinate = [&](std::size_t col) -> std::optional<double> {
+            try {
+                return table.optional_real(row, col);
+            } catch (const DataError& e) {
+                add(report, k_bad_coordinate, {e.line(), e.column(), e.key(), e.reason()});
+                return std::nullopt;
+            }
+        };
+        if (col_x) r.x = coordinate(*col_x);
+        if (col_y) r.y = coordinate(*col_y);
         if (col_neighbour) {
             r.neighbour_size = cell([&] { return table.optional_real(row, *col_neighbour); });
             if (r.neighbour_size && *r.neighbour_size <= 0.0) {
@@ -250,7 +300,23 @@ Census read_census(const io::CsvTable& table, CensusOptions options) {
                 r.neighbour_size.reset();
             }
         }
-        if (ok) records.push_back(std::move(r));
+        if (ok && no_size && r.flowered && !r.seeds) {
+            add(report, k_seeds_unknown,
+                where(col_size, "plant " + q(r.plant) + " flowered in " +
+                                    std::to_string(r.year) +
+                                    " but has no size and no seed count"));
+            ok = false;
+        }
+        if (ok && no_size) {
+            add(report, k_alive_without_size, where(col_size, no_size_text()));
+            ++c.m_summary.alive_without_size;
+        }
+        if (ok) {
+            records.push_back(std::move(r));
+        } else {
+            ++left_out;
+            if (!r.plant.empty()) tainted.insert(r.plant);
+        }
     }
 
     // 2. Per plant, in year order: duplicates, sessile plants, alive after dead.
@@ -263,6 +329,26 @@ Census read_census(const io::CsvTable& table, CensusOptions options) {
     for (std::size_t i = 0; i < records.size();) {
         std::size_t j = i;
         while (j < records.size() && records[j].plant == records[i].plant) ++j;
+        if (options.alive_after_dead == AliveAfterDead::notfound) {
+            std::size_t last_alive = i;
+            bool any_alive = false;
+            for (std::size_t k = i; k < j; ++k)
+                if (records[k].status == Status::alive) {
+                    last_alive = k;
+                    any_alive = true;
+                }
+            for (std::size_t k = i; any_alive && k < last_alive; ++k) {
+                CensusRecord& r = records[k];
+                if (r.status != Status::dead) continue;
+                r.status = Status::notfound;
+                ++c.m_summary.dead_read_as_notfound;
+                add(report, k_dead_read_notfound,
+                    {r.line, 0, "", "plant " + q(r.plant) + " is recorded dead in " +
+                                        std::to_string(r.year) + " and alive in " +
+                                        std::to_string(records[last_alive].year) + " (line " +
+                                        std::to_string(records[last_alive].line) + ")"});
+            }
+        }
         const CensusRecord& first = records[i];
         const CensusRecord* dead = nullptr;
         for (std::size_t k = i; k < j; ++k) {
@@ -291,7 +377,9 @@ Census read_census(const io::CsvTable& table, CensusOptions options) {
                     {r.line, 0, "", tag + " is alive in " + std::to_string(r.year) +
                                         " but was recorded dead in " +
                                         std::to_string(dead->year) + " (line " +
-                                        std::to_string(dead->line) + ")"});
+                                        std::to_string(dead->line) +
+                                        "); to read that row as not found, set "
+                                        "census.alive_after_dead = \"notfound\""});
             if (r.status == Status::dead && !dead) dead = &r;
             kept.push_back(r);
         }
@@ -327,6 +415,10 @@ Census read_census(const io::CsvTable& table, CensusOptions options) {
         std::size_t j = i;
         while (j < records.size() && records[j].plant == records[i].plant) ++j;
         const CensusRecord& first = records[i];
+        if (tainted.count(first.plant)) {  // a left-out row would look like a missing one
+            i = j;
+            continue;
+        }
         int end = std::numeric_limits<int>::max();
         for (std::size_t k = i; k < j; ++k)
             if (records[k].status == Status::dead) {
@@ -400,7 +492,7 @@ Census read_census(const io::CsvTable& table, CensusOptions options) {
         if (first.status == Status::alive) {
             if (options.seedling_flag) {
                 recruit = first.seedling;
-                if (!first.seedling && first.year > plot_first)
+                if (!first.seedling && first.year > plot_first && !tainted.count(first.plant))
                     add(report, k_not_seedling,
                         {first.line, 0, "", "plant " + q(first.plant) + " is first recorded in " +
                                                 std::to_string(first.year) + ", after plot " +
@@ -437,8 +529,10 @@ Census read_census(const io::CsvTable& table, CensusOptions options) {
                 if (!r.seeds) ++y.flowering_without_count;
             }
             if (r.seeds) y.seeds_counted += *r.seeds;
-            if (std::isnan(s.size_min) || r.size < s.size_min) s.size_min = r.size;
-            if (std::isnan(s.size_max) || r.size > s.size_max) s.size_max = r.size;
+            if (!std::isnan(r.size)) {
+                if (std::isnan(s.size_min) || r.size < s.size_min) s.size_min = r.size;
+                if (std::isnan(s.size_max) || r.size > s.size_max) s.size_max = r.size;
+            }
             if (k + 1 < j && records[k + 1].year == r.year + 1) {
                 if (records[k + 1].status == Status::notfound) {
                     ++y.excluded_notfound;
@@ -451,13 +545,14 @@ Census read_census(const io::CsvTable& table, CensusOptions options) {
         }
         i = j;
     }
+    // Rows left out for an error could be what these two miss: say nothing more then.
     for (const auto& y : s.per_year)
-        if (y.next_censused && y.transitions == 0)
+        if (left_out == 0 && y.next_censused && y.transitions == 0)
             add(report, k_year_empty,
                 {0, 0, "", "no plant alive in " + std::to_string(y.year) +
                                " has a row saying alive or dead in " +
                                std::to_string(y.year + 1)});
-    if (s.transitions == 0 && !records.empty())
+    if (s.transitions == 0 && !records.empty() && left_out == 0)
         add(report, k_no_transitions,
             {0, 0, "", "census years: " + std::to_string(s.years.size()) +
                            "; at least two consecutive years with the same plants are needed"});

@@ -2,6 +2,8 @@
 
 #include <algorithm>
 
+#include "safesite/io/quoted.hpp"
+
 namespace safesite::census {
 
 void ValidationReport::add(Severity severity, const std::string& code, const std::string& message,
@@ -71,11 +73,14 @@ std::string ValidationReport::render() const {
 DataError ValidationReport::to_error() const {
     for (const auto& issue : m_issues) {
         if (issue.severity != Severity::error) continue;
+        // First line: the first example in words (the line a reader sees first), then the
+        // whole report with each problem's message and remedy.
         const IssueExample first = issue.examples.empty() ? IssueExample{} : issue.examples[0];
+        const std::string lead = first.text.empty() ? issue.message : first.text;
         return DataError({m_file, first.line, first.column, first.key},
-                         issue.message + "; full report:\n" + render());
+                         io::capped(lead + " [" + issue.code + "]; full report:\n" + render()));
     }
-    return DataError({m_file, 0, 0, ""}, render());
+    return DataError({m_file, 0, 0, ""}, io::capped(render()));
 }
 
 }  // namespace safesite::census

@@ -7,27 +7,33 @@
 #include <set>
 #include <sstream>
 
+#include "safesite/io/near_match.hpp"
+#include "safesite/io/quoted.hpp"
+
 namespace safesite::io {
 
 namespace {
 
-/// Quote a value for an error message: "12,3" (quotes inside doubled, long values shortened).
-std::string quote_value(std::string_view value) {
-    std::string out = "\"";
-    const std::size_t limit = 40;
-    for (std::size_t i = 0; i < value.size() && i < limit; ++i) {
-        const char c = value[i];
-        if (c == '"')
-            out += "\"\"";
-        else if (c == '\n')
-            out += "\\n";
-        else if (c == '\r')
-            out += "\\r";
-        else
-            out += c;
-    }
-    if (value.size() > limit) out += "...";
-    return out + "\"";
+std::string quote_value(std::string_view value) { return quoted_short(value); }
+
+/// A header name as shown in messages: as written when short and plain, else quoted and cut.
+std::string shown_name(const std::string& name) {
+    if (name.size() <= k_quoted_keep &&
+        std::none_of(name.begin(), name.end(),
+                     [](char c) { return static_cast<unsigned char>(c) < 0x20; }))
+        return name;
+    return quoted_short(name);
+}
+
+/// Common ways of writing "no value" that are not an empty cell (checked case-sensitively
+/// for the exact spellings below, surrounding spaces removed).
+bool missing_marker(std::string_view v) {
+    static constexpr std::string_view markers[] = {
+        "NA", "N/A", "n/a", "na", "NaN", "nan", "NAN", ".", "-", "--", "?",
+        "null", "NULL", "Null", "None", "none", "missing", "#N/A"};
+    for (auto m : markers)
+        if (v == m) return true;
+    return false;
 }
 
 std::string_view trimmed(std::string_view s) {
@@ -38,11 +44,14 @@ std::string_view trimmed(std::string_view s) {
 }
 
 std::string header_list(const std::vector<std::string>& header) {
+    constexpr std::size_t k_max_names = 30;
     std::string out;
-    for (std::size_t i = 0; i < header.size(); ++i) {
+    for (std::size_t i = 0; i < header.size() && i < k_max_names; ++i) {
         if (i > 0) out += ", ";
-        out += header[i];
+        out += shown_name(header[i]);
     }
+    if (header.size() > k_max_names)
+        out += " and " + std::to_string(header.size() - k_max_names) + " more";
     return out;
 }
 
@@ -117,7 +126,7 @@ private:
     }
 
     [[noreturn]] void fail(std::size_t line, std::size_t column, const std::string& reason) const {
-        throw DataError({m_file, line, column, ""}, reason);
+        throw DataError({m_file, line, column, ""}, capped(reason));
     }
 
     std::string field(std::size_t column) {
@@ -168,18 +177,56 @@ private:
     std::size_t m_line = 1;
 };
 
+/// Refuse text that is not UTF-8 CSV before scanning it: UTF-16/32 (by byte-order mark), binary
+/// data (a NUL byte), classic-Mac line ends (lone CR, no LF at all).
+void check_text(std::string_view text, const std::string& file) {
+    auto byte = [&](std::size_t i) { return static_cast<unsigned char>(text[i]); };
+    if (text.size() >= 2 && ((byte(0) == 0xFF && byte(1) == 0xFE) ||
+                             (byte(0) == 0xFE && byte(1) == 0xFF)))
+        throw DataError({file, 1, 0, ""},
+                        "the file is UTF-16 text (it starts with a UTF-16 byte-order mark); "
+                        "expected UTF-8: save it again as \"CSV UTF-8\" or plain UTF-8 text");
+    if (text.size() >= 4 && byte(0) == 0 && byte(1) == 0 && byte(2) == 0xFE && byte(3) == 0xFF)
+        throw DataError({file, 1, 0, ""},
+                        "the file is UTF-32 text; expected UTF-8: save it again as UTF-8 text");
+    const std::size_t nul = text.find('\0');
+    if (nul != std::string_view::npos) {
+        const auto line =
+            1 + static_cast<std::size_t>(std::count(text.begin(), text.begin() + nul, '\n'));
+        throw DataError({file, line, 0, ""},
+                        "the file holds a NUL byte (byte " + std::to_string(nul + 1) +
+                            "): it is binary data, not CSV text; expected a UTF-8 CSV file (a "
+                            "UTF-16 file without byte-order mark looks like this too: save it "
+                            "as UTF-8)");
+    }
+    if (text.find('\n') == std::string_view::npos) {
+        const std::size_t cr = text.find('\r');
+        if (cr != std::string_view::npos && cr + 1 < text.size())
+            throw DataError({file, 1, 0, ""},
+                            "lines end with a lone carriage return (CR, old Mac line ends); "
+                            "expected LF or CRLF line ends: save the file again as CSV with "
+                            "Windows or Unix line ends");
+    }
+}
+
 }  // namespace
 
 CsvTable CsvTable::parse(std::string_view text, std::string file) {
     CsvTable t;
     t.m_file = std::move(file);
+    check_text(text, t.m_file);
     Scanner scan(text, t.m_file);
 
     std::vector<std::string> fields;
     std::vector<std::size_t> lines;
     while (scan.skip_blank_or_comment(true)) {
     }
-    if (scan.at_end()) throw DataError({t.m_file, 0, 0, ""}, "no header row; the file is empty");
+    if (scan.at_end())
+        throw DataError({t.m_file, 0, 0, ""},
+                        text.empty() ? "the file is empty; expected CSV text starting with a "
+                                       "header row of column names"
+                                     : "no header row: the file holds only comment or empty "
+                                       "lines; expected a header row of column names");
     t.m_header_line = scan.line();
     scan.record(fields, lines);
     std::set<std::string> seen;
@@ -217,12 +264,27 @@ CsvTable CsvTable::parse(std::string_view text, std::string file) {
 }
 
 CsvTable CsvTable::read(const std::filesystem::path& path) {
+    namespace fs = std::filesystem;
+    const std::string name = path.string();
+    std::error_code ec;
+    const fs::file_status st = fs::status(path, ec);
+    if (st.type() == fs::file_type::not_found)
+        throw DataError({name, 0, 0, ""},
+                        "no such file; expected a CSV file at this path (a relative path in a "
+                        "model file is taken from the model file's folder)");
+    if (st.type() == fs::file_type::directory)
+        throw DataError({name, 0, 0, ""},
+                        "this is a folder, not a file; expected the path of a CSV file");
     std::ifstream in(path, std::ios::binary);
-    if (!in) throw DataError({path.string(), 0, 0, ""}, "cannot open the file for reading");
+    if (!in)
+        throw DataError({name, 0, 0, ""},
+                        "the file cannot be opened for reading (check that it exists and that "
+                        "you have permission to read it)");
     std::ostringstream buffer;
     buffer << in.rdbuf();
-    if (in.bad()) throw DataError({path.string(), 0, 0, ""}, "cannot read the file");
-    return parse(buffer.str(), path.string());
+    if (in.bad())
+        throw DataError({name, 0, 0, ""}, "the file cannot be read (an input/output error)");
+    return parse(buffer.str(), name);
 }
 
 std::optional<std::size_t> CsvTable::find(std::string_view file_name) const {
@@ -243,7 +305,9 @@ std::size_t CsvTable::require(const std::string& name, const ColumnMap& map) con
     std::string reason = "required column " + quote_value(file_name);
     if (file_name != name) reason += " (our column '" + name + "')";
     reason += " is missing; the header has: " + header_list(m_header);
-    throw DataError({m_file, m_header_line, 0, file_name}, reason);
+    if (auto near = closest_match(file_name, m_header))
+        reason += "; did you mean " + shown_name(*near) + "?";
+    throw DataError({m_file, m_header_line, 0, file_name}, capped(reason));
 }
 
 bool CsvTable::empty(std::size_t row, std::size_t col) const {
@@ -255,20 +319,44 @@ SourceLocation CsvTable::where(std::size_t row, std::size_t col) const {
 }
 
 DataError CsvTable::error_at(std::size_t row, std::size_t col, const std::string& reason) const {
-    return DataError(where(row, col), reason);
+    return DataError(where(row, col), capped(reason));
 }
 
 std::string CsvTable::text(std::size_t row, std::size_t col) const {
     std::string_view v = trimmed(cell(row, col));
     if (v.empty())
-        throw error_at(row, col, m_header[col] + " is empty; expected a value");
+        throw error_at(row, col, shown_name(m_header[col]) + " is empty; expected a value");
     return std::string(v);
 }
 
+void CsvTable::refuse_marker(std::size_t row, std::size_t col, const char* expected,
+                             bool may_be_empty) const {
+    const std::string_view v = trimmed(cell(row, col));
+    if (!missing_marker(v)) return;
+    const std::string name = shown_name(m_header[col]);
+    if (may_be_empty)
+        throw error_at(row, col,
+                       name + " " + quote_value(v) +
+                           " is read as text, not as a missing value; to say \"not counted\" "
+                           "or \"not measured\" leave the cell empty (an empty cell is the "
+                           "missing value in safesite's CSV files); otherwise expected " +
+                           expected);
+    throw error_at(row, col,
+                   name + " " + quote_value(v) +
+                       " looks like a missing-value marker, but this column needs a value in "
+                       "every row; expected " + expected);
+}
+
 double CsvTable::real(std::size_t row, std::size_t col) const {
+    return read_real(row, col, false);
+}
+
+double CsvTable::read_real(std::size_t row, std::size_t col, bool may_be_empty) const {
     const std::string& raw = cell(row, col);
     std::string_view v = trimmed(raw);
-    if (v.empty()) throw error_at(row, col, m_header[col] + " is empty; expected a number");
+    const std::string name = shown_name(m_header[col]);
+    if (v.empty()) throw error_at(row, col, name + " is empty; expected a number");
+    refuse_marker(row, col, "a decimal number with '.'", may_be_empty);
     std::string_view digits = v;
     if (digits.front() == '+') digits.remove_prefix(1);
     double value = 0.0;
@@ -276,40 +364,54 @@ double CsvTable::real(std::size_t row, std::size_t col) const {
                                      std::chars_format::general);
     if (ec == std::errc::result_out_of_range)
         throw error_at(row, col,
-                       m_header[col] + " " + quote_value(raw) +
+                       name + " " + quote_value(raw) +
                            " is out of the range of a double; expected a finite number");
     if (ec != std::errc() || end != digits.data() + digits.size())
         throw error_at(row, col,
-                       m_header[col] + " " + quote_value(raw) +
+                       name + " " + quote_value(raw) +
                            " is not a number; expected a decimal with '.'");
     if (!std::isfinite(value))
         throw error_at(row, col,
-                       m_header[col] + " " + quote_value(raw) + " is not finite; expected a number");
+                       name + " " + quote_value(raw) + " is not finite; expected a number");
     return value;
 }
 
 std::int64_t CsvTable::integer(std::size_t row, std::size_t col) const {
+    return read_integer(row, col, false);
+}
+
+std::int64_t CsvTable::read_integer(std::size_t row, std::size_t col, bool may_be_empty) const {
     const std::string& raw = cell(row, col);
     std::string_view v = trimmed(raw);
-    if (v.empty()) throw error_at(row, col, m_header[col] + " is empty; expected a whole number");
+    const std::string name = shown_name(m_header[col]);
+    if (v.empty()) throw error_at(row, col, name + " is empty; expected a whole number");
+    refuse_marker(row, col, "a whole number", may_be_empty);
     std::string_view digits = v;
     if (digits.front() == '+') digits.remove_prefix(1);
     std::int64_t value = 0;
     auto [end, ec] = std::from_chars(digits.data(), digits.data() + digits.size(), value);
+    if (ec == std::errc::result_out_of_range)
+        throw error_at(row, col,
+                       name + " " + quote_value(raw) +
+                           " is too large for a whole number; expected at most 19 digits");
     if (ec != std::errc() || end != digits.data() + digits.size())
         throw error_at(row, col,
-                       m_header[col] + " " + quote_value(raw) + " is not a whole number; expected " +
+                       name + " " + quote_value(raw) + " is not a whole number; expected " +
                            "digits only");
     return value;
 }
 
-bool CsvTable::flag(std::size_t row, std::size_t col) const {
+bool CsvTable::flag(std::size_t row, std::size_t col) const { return read_flag(row, col, false); }
+
+bool CsvTable::read_flag(std::size_t row, std::size_t col, bool may_be_empty) const {
     const std::string& raw = cell(row, col);
     std::string_view v = trimmed(raw);
     if (v == "0") return false;
     if (v == "1") return true;
+    refuse_marker(row, col, "0 or 1", may_be_empty);
     throw error_at(row, col,
-                   m_header[col] + " " + quote_value(raw) + " is not a flag; expected 0 or 1");
+                   shown_name(m_header[col]) + " " + quote_value(raw) +
+                       " is not a flag; expected 0 or 1");
 }
 
 std::optional<std::string> CsvTable::optional_text(std::size_t row, std::size_t col) const {
@@ -319,17 +421,17 @@ std::optional<std::string> CsvTable::optional_text(std::size_t row, std::size_t 
 
 std::optional<double> CsvTable::optional_real(std::size_t row, std::size_t col) const {
     if (empty(row, col)) return std::nullopt;
-    return real(row, col);
+    return read_real(row, col, true);
 }
 
 std::optional<std::int64_t> CsvTable::optional_integer(std::size_t row, std::size_t col) const {
     if (empty(row, col)) return std::nullopt;
-    return integer(row, col);
+    return read_integer(row, col, true);
 }
 
 std::optional<bool> CsvTable::optional_flag(std::size_t row, std::size_t col) const {
     if (empty(row, col)) return std::nullopt;
-    return flag(row, col);
+    return read_flag(row, col, true);
 }
 
 CsvTable CsvTable::select_rows(const std::vector<std::size_t>& rows) const {

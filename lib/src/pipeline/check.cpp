@@ -115,6 +115,7 @@ CheckResult check(const spec::ModelSpec& model) {
         out.memory = spec::mesh_memory(model, kernels);
         spec::require_mesh_memory(model, kernels);
     }
+    out.options = c.options();
     if (model.arrival.method == spec::ArrivalMethod::experiments && model.data.trapping &&
         model.data.retention) {
         std::vector<std::string> forms;
@@ -179,7 +180,26 @@ std::vector<report::TidyTable> check_tables(const CheckResult& result) {
                  ex.column > 0 ? count(ex.column) : report::missing(), text(ex.key),
                  text(ex.text)});
     }
-    std::vector<report::TidyTable> out{years, sites, gaps, problems};
+    // What each [census] row policy did: rows changed (or, set to "error", rows refused).
+    report::TidyTable policies{"census_policies", {"key", "value", "rows"}, {}};
+    auto issue_count = [&](const char* code) {
+        const auto* issue = result.report.find(code);
+        return count(issue ? issue->count : 0);
+    };
+    const auto& o = result.options;
+    policies.rows.push_back({text("census.missing_row"),
+                             text(std::string(to_string(o.missing_row))),
+                             issue_count("missing_row")});
+    policies.rows.push_back(
+        {text("census.alive_without_size"), text(std::string(to_string(o.alive_without_size))),
+         o.alive_without_size == census::AliveWithoutSize::keep ? count(s.alive_without_size)
+                                                                : issue_count("missing_size")});
+    policies.rows.push_back(
+        {text("census.alive_after_dead"), text(std::string(to_string(o.alive_after_dead))),
+         o.alive_after_dead == census::AliveAfterDead::notfound
+             ? count(s.dead_read_as_notfound)
+             : issue_count("alive_after_dead")});
+    std::vector<report::TidyTable> out{years, sites, gaps, problems, policies};
     if (result.trapping) {
         struct Counts {
             std::set<std::string> neighbours;

@@ -9,6 +9,8 @@ census::CensusOptions to_census_options(const ModelSpec& spec) {
     o.microsites = spec.microsites.labels;
     o.bare = spec.microsites.bare_index;
     o.missing_row = spec.census.missing_row;
+    o.alive_without_size = spec.census.alive_without_size;
+    o.alive_after_dead = spec.census.alive_after_dead;
     o.seedling_flag = spec.census.seedling_flag;
     return o;
 }

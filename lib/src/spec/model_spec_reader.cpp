@@ -1103,9 +1103,13 @@ ModelSpec read_document(const toml::table& doc, const std::filesystem::path& fil
     if (auto r = root.table("data")) spec.data = read_data(*r, file);
     // [census]
     if (auto r = root.table("census")) {
-        r->allow({"missing_row", "seedling_flag"});
+        r->allow({"missing_row", "seedling_flag", "alive_without_size", "alive_after_dead"});
         if (auto p = r->choice("missing_row", {"error", "notfound"}))
             spec.census.missing_row = *census::parse_missing_row_policy(*p);
+        if (auto p = r->choice("alive_without_size", {"keep", "error"}))
+            spec.census.alive_without_size = *census::parse_alive_without_size(*p);
+        if (auto p = r->choice("alive_after_dead", {"error", "notfound"}))
+            spec.census.alive_after_dead = *census::parse_alive_after_dead(*p);
         if (auto b = r->boolean("seedling_flag")) spec.census.seedling_flag = *b;
     }
     if (auto r = root.table("mesh")) spec.mesh = read_mesh(*r);

@@ -173,7 +173,9 @@ TEST_CASE("unreadable cells, bad statuses and missing values are all reported at
     CHECK(status.examples[0].line == 11);
     CHECK(status.examples[0].column == 6);
     CHECK(status.examples[0].text.find("'alive'") != std::string::npos);
-    const auto& missing = issue(c, "missing_value");
+    // An alive plant without a size is kept (census.alive_without_size = "keep"): a warning.
+    const auto& missing = issue(c, "alive_without_size");
+    CHECK(missing.severity == Severity::warning);
     CHECK(missing.examples[0].line == 9);
     CHECK(missing.examples[0].key == "size");
 }

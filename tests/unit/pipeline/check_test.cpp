@@ -20,12 +20,16 @@ TEST_CASE("check summarises the census fixture without errors", "[pipeline][unit
     CHECK(result.summary.per_year[0].recruits_by_microsite == std::vector<std::size_t>{7, 8});
     CHECK(result.summary.per_year[2].recruits_by_microsite == std::vector<std::size_t>{6, 9});
     const auto tables = pipeline::check_tables(result);
-    REQUIRE(tables.size() == 4);
+    REQUIRE(tables.size() == 5);
     CHECK(tables[0].name == "census_years");
     CHECK(tables[0].rows.size() == 4);
     CHECK(tables[1].name == "census_microsites");
     CHECK(tables[1].rows.size() == 4 * 2);
     CHECK(tables[3].name == "problems");
+    // One row per [census] policy key; the fixture triggers none of them.
+    CHECK(tables[4].name == "census_policies");
+    REQUIRE(tables[4].rows.size() == 3);
+    for (const auto& row : tables[4].rows) CHECK(row[2] == report::integer(0));
 }
 
 TEST_CASE("check refuses a model file without a census", "[pipeline][unit]") {

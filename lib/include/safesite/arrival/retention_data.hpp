@@ -39,14 +39,15 @@ struct RetentionData {
     std::vector<RetentionCheck> checks;
 };
 
-/// Validate parsed CSV as retention checks. Required columns: seed, station, microsite,
-/// seed_type, day, present. `microsites` are the admissible microsite labels. Throws DataError
-/// (file, line, column, column name; the message names the seed) for: a missing column, an
-/// empty or malformed cell, day < 0, present not 0/1, an unknown microsite, a seed whose
-/// station, microsite or seed type changes between rows, a seed whose first row is not day 0
-/// ("no day-0 placement") or is absent at day 0, days not strictly increasing in file order,
-/// and a seed present again after it was absent. `columns` maps our column names to the
-/// file's (`[data.retention_columns]`); unmapped names are looked up as they are.
+/// Validate parsed CSV as retention checks. Required columns: seed, station, microsite, seed_type,
+/// day, present. `microsites` are the admissible microsite labels. Throws DataError (file, line,
+/// column, column name; the message names the seed) for: a missing column, a header without data
+/// rows (at the header line), an empty or malformed cell (a missing-value marker such as `NA`
+/// included), day < 0, present not 0/1, an unknown microsite, a seed whose station, microsite or
+/// seed type changes between rows, a seed whose first row is not day 0 ("no day-0 placement") or is
+/// absent at day 0, days not strictly increasing in file order, and a seed present again after it
+/// was absent. `columns` maps our column names to the file's (`[data.retention_columns]`); unmapped
+/// names are looked up as they are.
 RetentionData retention_from_csv(const io::CsvTable& csv,
                                  const std::vector<std::string>& microsites,
                                  const io::ColumnMap& columns = {});

@@ -39,11 +39,12 @@ struct TrappingData {
 
 /// Validate parsed CSV as trapping trials. Required columns: neighbour, form, neighbour_size,
 /// seed_type, launched, trapped (other columns are ignored). `forms` are the admissible growth
-/// forms (the non-bare microsites). Throws DataError with file, line, column and column name
-/// for: a missing column, an empty or malformed cell, neighbour_size ≤ 0, launched ≤ 0,
-/// trapped < 0 or > launched, an unknown form, the same neighbour given two forms, or the same
-/// neighbour × seed type twice. `columns` maps our column names to the file's
-/// (`[data.trapping_columns]`); unmapped names are looked up as they are.
+/// forms (the non-bare microsites). Throws DataError with file, line, column and column name for: a
+/// missing column, a header without data rows (at the header line), an empty or malformed cell (a
+/// missing-value marker such as `NA` included), neighbour_size ≤ 0, launched ≤ 0, trapped < 0 or >
+/// launched, an unknown form, the same neighbour given two forms, or the same neighbour × seed type
+/// twice. `columns` maps our column names to the file's (`[data.trapping_columns]`); unmapped names
+/// are looked up as they are.
 TrappingData trapping_from_csv(const io::CsvTable& csv, const std::vector<std::string>& forms,
                                const io::ColumnMap& columns = {});
 

@@ -19,6 +19,7 @@
 #include "safesite/census/census_record.hpp"
 #include "safesite/census/census_summary.hpp"
 #include "safesite/census/missing_row_policy.hpp"
+#include "safesite/census/row_policies.hpp"
 #include "safesite/census/size_transform.hpp"
 #include "safesite/census/validation_report.hpp"
 #include "safesite/io/csv_table.hpp"
@@ -34,6 +35,8 @@ struct CensusOptions {
     /// none is named, and then no row counts as bare soil (every label is a neighbour form).
     std::optional<std::size_t> bare;
     MissingRowPolicy missing_row = MissingRowPolicy::error;
+    AliveWithoutSize alive_without_size = AliveWithoutSize::keep;
+    AliveAfterDead alive_after_dead = AliveAfterDead::error;
     bool seedling_flag = true;             ///< the file has a `seedling` column
 };
 
@@ -92,11 +95,16 @@ private:
     bool m_has_neighbour_sizes = false;
 };
 
-/// Type and validate a parsed census file. Data problems are collected in report(); only a
-/// missing required column (plant, year, plot, microsite, status, size, flowered, and seedling
-/// when options.seedling_flag) throws a DataError at once. Optional columns: seeds, x, y,
-/// neighbour_size. Preconditions: options.microsites is not empty; options.bare, when set,
-/// is < options.microsites.size().
+/// Type and validate a parsed census file. Data problems are collected in report(); only a missing
+/// required column (plant, year, plot, microsite, status, size, flowered, and seedling when
+/// options.seedling_flag) and a file with a header but no data row throw a DataError at once (at
+/// the header line). Optional columns: seeds, x, y, neighbour_size. The coordinates x and y are
+/// used by no computation: a malformed coordinate is a warning (`bad_coordinate`, counted, first
+/// examples located) and the coordinate is left empty. A row with an unreadable cell is left out
+/// and its plant is spared the follow-on checks that its missing row would set off (first record
+/// not a seedling, missing rows, no transitions), so that one bad cell gives one error.
+/// Preconditions: options.microsites is not empty; options.bare, when set, is <
+/// options.microsites.size().
 Census read_census(const io::CsvTable& table, CensusOptions options);
 
 /// Read, type and validate a census file; throws DataError for malformed CSV, a missing

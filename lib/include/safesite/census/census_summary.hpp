@@ -39,10 +39,16 @@ struct CensusSummary {
     std::size_t transitions = 0;
     std::size_t recruits = 0;               ///< attributed to a transition year
     std::size_t unattributed_recruits = 0;  ///< seedlings in their plot's first census year
-    /// Smallest and largest transformed size over all alive rows (NaN when none): the data
-    /// range from which mesh bounds are derived (L = min − margin·range, U = max + margin·range).
+    /// Smallest and largest transformed size over the alive rows with a size (NaN when none):
+    /// the data range from which mesh bounds are derived
+    /// (L = min − margin·range, U = max + margin·range).
     double size_min = 0.0;
     double size_max = 0.0;
+    /// Rows recorded alive without a size and kept (census.alive_without_size = "keep").
+    std::size_t alive_without_size = 0;
+    /// Dead rows read as not found because the plant is alive later
+    /// (census.alive_after_dead = "notfound").
+    std::size_t dead_read_as_notfound = 0;
 
     /// Share of the alive plants in each microsite in census year `year` (label order; sums
     /// to 1 unless no plant is alive). Throws UsageError for a year not in the census.

@@ -53,8 +53,9 @@ public:
     /// The report in words, errors first, one line per example with `file:line:column:`.
     std::string render() const;
 
-    /// A DataError located at the first example of the first error issue, whose reason is the
-    /// rendered report (the CLI prints it and exits 3). Precondition: has_errors().
+    /// A DataError located at the first example of the first error issue, whose reason is that
+    /// example's text with the issue code, then the rendered report (the CLI prints it and
+    /// exits 3); the reason is capped (io::capped). Precondition: has_errors().
     DataError to_error() const;
 
 private:

@@ -13,7 +13,12 @@
 /// - the first non-comment line is the header; entirely empty lines are skipped;
 /// - every row must have as many fields as the header (ragged rows are errors);
 /// - a quote inside an unquoted field, text after a closing quote and a quoted field left open
-///   at the end of the file are errors.
+///   at the end of the file are errors;
+/// - refused before scanning: UTF-16/UTF-32 text (by byte-order mark), binary data (any NUL
+///   byte), lone-CR line ends; read() also names a missing path and a folder as such;
+/// - an empty cell is the missing value; typed reads refuse markers such as `NA`, `NaN`, `.`,
+///   `-` and say so (an optional cell: "leave it empty"); values quoted in messages are cut
+///   to 40 characters with their length (io/quoted.hpp) and messages are capped.
 ///
 /// Locations: lines are 1-based physical lines of the file (a field spanning lines reports the
 /// line where it starts); the column of a cell is its 1-based **field index**, not a character
@@ -112,6 +117,14 @@ public:
     DataError error_at(std::size_t row, std::size_t col, const std::string& reason) const;
 
 private:
+    double read_real(std::size_t row, std::size_t col, bool may_be_empty) const;
+    std::int64_t read_integer(std::size_t row, std::size_t col, bool may_be_empty) const;
+    bool read_flag(std::size_t row, std::size_t col, bool may_be_empty) const;
+    /// Throws when the cell is a missing-value marker such as NA (the remedy depends on
+    /// whether an empty cell is allowed there).
+    void refuse_marker(std::size_t row, std::size_t col, const char* expected,
+                       bool may_be_empty) const;
+
     std::string m_file;
     std::vector<std::string> m_header;
     std::size_t m_header_line = 0;

@@ -25,6 +25,7 @@ struct CheckResult {
     std::vector<std::string> microsites;     ///< model labels, in order
     census::ValidationReport report;         ///< all problems (errors and warnings)
     census::CensusSummary summary;           ///< plants, years, transitions, recruits, gaps
+    census::CensusOptions options;           ///< how the census was read (policies)
     /// The seed experiments as read (method = experiments only; a bad file throws DataError
     /// at its first problem, with file, line and column).
     std::optional<arrival::TrappingData> trapping;
@@ -60,7 +61,8 @@ void resolve_arrival_formulas(const spec::ModelSpec& model,
 
 /// The check as tables: `census_years` (one row per census year), `census_microsites` (per
 /// transition year and microsite: plants alive at t and recruits at t+1), `census_gaps`,
-/// `problems` (one row per example of each problem); with the experiments also
+/// `problems` (one row per example of each problem), `census_policies` (per `[census]` policy
+/// key: its value and how many rows it changed or refused); with the experiments also
 /// `trapping_summary` (per form × seed type: neighbours, trials, seeds launched and trapped)
 /// and `retention_summary` (per microsite × seed type: stations, seeds, checks, seeds seen to
 /// leave, last check day).

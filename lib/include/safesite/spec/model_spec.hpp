@@ -40,6 +40,8 @@ struct DataSpec {
 /// `[census]`: reading policies.
 struct CensusSpec {
     census::MissingRowPolicy missing_row = census::MissingRowPolicy::error;
+    census::AliveWithoutSize alive_without_size = census::AliveWithoutSize::keep;
+    census::AliveAfterDead alive_after_dead = census::AliveAfterDead::error;
     bool seedling_flag = true;  ///< the census has a `seedling` column marking new recruits
 };
 
