@@ -12,6 +12,7 @@
 #include "safesite/error.hpp"
 #include "safesite/report/output_folder.hpp"
 #include "safesite/report/caution.hpp"
+#include "safesite/report/model_check_figures.hpp"
 #include "safesite/report/svg_chart.hpp"
 
 namespace safesite::report {
@@ -319,6 +320,7 @@ std::vector<Figure> all_figures(const std::vector<TidyTable>& tables) {
                        &arrival_figure, &perturbation_figure}) {
         if (auto f = make(tables)) out.push_back(std::move(*f));
     }
+    for (auto& f : model_check_figures(tables)) out.push_back(std::move(f));
     return out;
 }
 
