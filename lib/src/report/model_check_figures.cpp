@@ -199,7 +199,7 @@ std::optional<Figure> growth_scatter(const std::vector<TidyTable>& tables, const
         chart.set_y_label(y_label);
         const auto& [x, y] = points[key];
         const std::size_t s_dots = chart.add_series(
-            kind == 2 ? "residuals" : fmt::format("plants ({})", x.size()), Swatch::point);
+            kind == 2 ? "residuals" : fmt::format("plants ({} shown)", x.size()), Swatch::point);
         if (kind == 0 && pooled.count(key)) {
             const Curve& c = pooled[key];
             const std::size_t s_fit = chart.add_series("fitted mean, pooled", Swatch::line);

@@ -4,6 +4,7 @@
 #include <cassert>
 #include <cmath>
 #include <cstdlib>
+#include <map>
 #include <string>
 #include <utility>
 
@@ -449,6 +450,7 @@ std::string SvgChart::to_svg() const {
     o += "</g>\n";
 
     // 4. Marks, back to front: bands, reference lines, bars, lines, whiskers, points.
+    std::map<std::size_t, std::pair<std::string, double>> dots;  // per series: path, opacity
     auto draw = [&](Mark::Kind kind) {
         for (const auto& m : m_marks) {
             if (m.kind != kind) continue;
@@ -552,11 +554,14 @@ std::string SvgChart::to_svg() const {
                     }
                     break;
                 }
-                case Mark::Kind::dot:
-                    o += fmt::format("<circle class=\"dot\" cx=\"{}\" cy=\"{}\" r=\"1.8\" "
-                                     "fill=\"{}\" fill-opacity=\"{}\"/>\n",
-                                     px(sx(m.x[0])), px(sy(m.y[0])), c, format_fixed(m.size, 2));
+                case Mark::Kind::dot: {
+                    // Dots of a series share one path of zero-length round-capped strokes
+                    // (3.6 px across): a few bytes a point for scatters of thousands.
+                    auto& d = dots[m.series];
+                    if (d.first.empty()) d.second = m.size;
+                    d.first += "M" + px(sx(m.x[0])) + "," + px(sy(m.y[0])) + "h0";
                     break;
+                }
             }
         }
     };
@@ -564,6 +569,12 @@ std::string SvgChart::to_svg() const {
                       Mark::Kind::bar, Mark::Kind::trace, Mark::Kind::dot, Mark::Kind::line,
                       Mark::Kind::whisker, Mark::Kind::point}) {
         draw(kind);
+        if (kind != Mark::Kind::dot) continue;
+        for (const auto& [series, d] : dots)
+            o += fmt::format("<path class=\"dots\" d=\"{}\" fill=\"none\" stroke=\"{}\" "
+                             "stroke-width=\"3.6\" stroke-linecap=\"round\" "
+                             "stroke-opacity=\"{}\"/>\n",
+                             d.first, colour_of(series), format_fixed(d.second, 2));
     }
 
     // 5. Axes: a line along the left and bottom of the plot, outward ticks, tick labels.
@@ -894,7 +905,7 @@ std::string heat_map_svg(const std::string& title, const std::string& caption,
             px(panel_w), px(panel_h));
         o += fmt::format("<text class=\"panel-title\" x=\"{}\" y=\"{}\" font-size=\"{}\" "
                          "font-weight=\"bold\">{}</text>\n",
-                         px(8.0), px(16.0), px(fs), xml_escape(shorten(p.title, 40)));
+                         px(8.0), px(16.0), px(0.9 * fs), xml_escape(shorten(p.title, 36)));
         o += fmt::format("<text x=\"{}\" y=\"{}\" font-size=\"{}\" fill=\"#444444\">"
                          "maximum {}</text>\n",
                          px(8.0), px(32.0), px(0.85 * fs), xml_escape(fmt::format("{:.3g}", vmax)));
@@ -921,19 +932,43 @@ std::string heat_map_svg(const std::string& title, const std::string& caption,
         const double x0 = ex.front(), x1 = ex.back(), y0 = ey.front(), y1 = ey.back();
         auto sx = [&](double v) { return left + (v - x0) / (x1 - x0) * side; };
         auto sy = [&](double v) { return top + side - (v - y0) / (y1 - y0) * side; };
-        o += "<g class=\"cells\" stroke=\"none\">\n";
+        // Colours in 20 steps (those of the legend); each step is one path whose subpaths
+        // are runs of equal-step cells along a row ("M x,y h w v h h −w Z" per run).
+        constexpr int steps = 20;
+        std::vector<std::string> paths(steps);
         for (std::size_t r = 0; r < ny; ++r) {
-            for (std::size_t c = 0; c < nx; ++c) {
+            std::size_t c = 0;
+            while (c < nx) {
                 const double v = p.values[r * nx + c];
-                if (!std::isfinite(v)) continue;
-                const double t = vmax > 0.0 ? std::max(v, 0.0) / vmax : 0.0;
-                o += fmt::format("<rect class=\"cell\" x=\"{}\" y=\"{}\" width=\"{}\" "
-                                 "height=\"{}\" fill=\"{}\"/>\n",
-                                 px(sx(ex[c])), px(sy(ey[r + 1])), px(sx(ex[c + 1]) - sx(ex[c])),
-                                 px(sy(ey[r]) - sy(ey[r + 1])), sequential_colour(t));
+                if (!std::isfinite(v)) {
+                    ++c;
+                    continue;
+                }
+                auto step_of = [&](double x) {
+                    const double t = vmax > 0.0 ? std::max(x, 0.0) / vmax : 0.0;
+                    return std::min(steps - 1, static_cast<int>(t * steps));
+                };
+                const int k = step_of(v);
+                std::size_t end = c + 1;
+                while (end < nx && std::isfinite(p.values[r * nx + end]) &&
+                       step_of(p.values[r * nx + end]) == k)
+                    ++end;
+                const double xa = sx(ex[c]), xb = sx(ex[end]);
+                const double ya = sy(ey[r + 1]), yb = sy(ey[r]);
+                paths[static_cast<std::size_t>(k)] += "M" + px(xa) + "," + px(ya) + "h" +
+                                                      px(xb - xa) + "v" + px(yb - ya) + "h" +
+                                                      px(xa - xb) + "Z";
+                c = end;
             }
         }
-        o += "</g>\n";
+        for (int k = 0; k < steps; ++k) {
+            if (paths[static_cast<std::size_t>(k)].empty()) continue;
+            o += fmt::format("<path class=\"cells\" d=\"{}\" fill=\"{}\" stroke=\"{}\" "
+                             "stroke-width=\"0.3\"/>\n",
+                             paths[static_cast<std::size_t>(k)],
+                             sequential_colour((k + 0.5) / steps),
+                             sequential_colour((k + 0.5) / steps));
+        }
         // Frame, ticks and tick labels.
         o += fmt::format("<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"none\" "
                          "stroke=\"{}\" stroke-width=\"1\"/>\n",

@@ -3,6 +3,7 @@
 // colour scale and panel composition of svg_chart.hpp.
 #include <catch2/catch.hpp>
 
+#include <algorithm>
 #include <cmath>
 #include <string>
 #include <vector>
@@ -42,6 +43,21 @@ std::string tag_balance_error(const std::string& s) {
 std::size_t count(const std::string& text, const std::string& what) {
     std::size_t n = 0;
     for (std::size_t i = text.find(what); i != std::string::npos; i = text.find(what, i + 1)) ++n;
+    return n;
+}
+
+/// Points of the dot paths: one "M x,y h0" subpath each.
+std::size_t dots(const std::string& svg) { return count(svg, "h0M") + count(svg, "h0\""); }
+
+/// Subpaths ("…Z") of the heat-map cell paths.
+std::size_t cell_runs(const std::string& svg) {
+    std::size_t n = 0;
+    const std::string key = "class=\"cells\" d=\"";
+    for (std::size_t i = svg.find(key); i != std::string::npos; i = svg.find(key, i + 1)) {
+        const std::size_t start = i + key.size();
+        const std::string d = svg.substr(start, svg.find('"', start) - start);
+        n += static_cast<std::size_t>(std::count(d.begin(), d.end(), 'Z'));
+    }
     return n;
 }
 
@@ -139,18 +155,18 @@ TEST_CASE("growth figures: scatter with bands, residuals, normal quantile plot",
     const auto g = check_growth_figure(tables);
     REQUIRE(g);
     check_figure(*g, "check_growth");
-    CHECK(count(g->svg, "class=\"dot\"") == 7);   // the row without size_next is left out
+    CHECK(dots(g->svg) == 7);   // the row without size_next is left out
     CHECK(count(g->svg, "class=\"area\"") == 2);  // ±1 and ±2 SD
     CHECK(count(g->svg, "class=\"line\"") == 1);
     const auto r = check_growth_residuals_figure(tables);
     REQUIRE(r);
     check_figure(*r, "check_growth_residuals");
-    CHECK(count(r->svg, "class=\"dot\"") == 7);
+    CHECK(dots(r->svg) == 7);
     CHECK(count(r->svg, "class=\"reference\"") == 3);  // 0 and ±2
     const auto q = check_growth_qq_figure(tables);
     REQUIRE(q);
     check_figure(*q, "check_growth_qq");
-    CHECK(count(q->svg, "class=\"dot\"") == 7);
+    CHECK(dots(q->svg) == 7);
     CHECK(count(q->svg, "class=\"line\"") == 1);  // the 1:1 line
 }
 
@@ -163,7 +179,7 @@ TEST_CASE("seeds, recruit sizes, trapping, retention and size distribution figur
     const auto s = check_seeds_figure({seeds, curves()});
     REQUIRE(s);
     check_figure(*s, "check_seeds");
-    CHECK(count(s->svg, "class=\"dot\"") == 5);
+    CHECK(dots(s->svg) == 5);
     CHECK(count(s->svg, "class=\"line\"") == 1);
     CHECK(count(s->svg, "class=\"trace\"") == 2);
 
@@ -246,7 +262,9 @@ TEST_CASE("heat maps: one panel per block, cells, legend; scale is ordered in li
     const auto f = check_surface_figure({s}, "elasticity");
     REQUIRE(f);
     check_figure(*f, "check_elasticity");
-    CHECK(count(f->svg, "class=\"cell\"") == 2 * 3 * 4);
+    // Values 0.01 (i + j) with maximum 0.05: steps ⌊20 (i + j)/5⌋ differ along each row, so
+    // every cell is its own run: 2 blocks × 3 × 4 cells.
+    CHECK(cell_runs(f->svg) == 2 * 3 * 4);
     CHECK(count(f->svg, "<g class=\"panel\">") == 3);  // two blocks and the legend
     CHECK(count(f->svg, "class=\"swatch\"") == 20);
     CHECK_FALSE(check_surface_figure({s}, "kernel"));  // no rows of that surface

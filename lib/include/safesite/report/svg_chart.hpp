@@ -124,8 +124,9 @@ public:
     /// the year-specific curves drawn faintly under the pooled one.
     void add_trace(std::size_t series, const std::vector<double>& x,
                    const std::vector<double>& y, double opacity = 0.35);
-    /// Small translucent dots (radius 1.8 px, `opacity`) for many points, e.g. a scatter of
-    /// thousands of plants. \pre x.size() == y.size().
+    /// Small translucent dots (3.6 px across, `opacity`) for many points, e.g. a scatter of
+    /// thousands of plants; drawn as one `<path class="dots">` per series with a zero-length
+    /// round-capped stroke ("M x,y h0") per point. \pre x.size() == y.size().
     void add_dots(std::size_t series, const std::vector<double>& x,
                   const std::vector<double>& y, double opacity = 0.35);
 
@@ -200,8 +201,10 @@ struct HeatPanel {
 };
 
 /// Heat maps, one square panel per HeatPanel on a grid of `columns`, with the axis labels,
-/// a legend of the colour scale (sequential_colour; 0 to the panel's maximum) labelled
-/// `legend_label`, a title and a caption. Cells are `<rect class="cell">`. Standalone SVG 1.1.
+/// a legend of the colour scale (sequential_colour in 20 steps; 0 to the panel's maximum)
+/// labelled `legend_label`, a title and a caption. Cells of one colour step form one
+/// `<path class="cells">`, a closed subpath ("…Z") per run of equal-step cells along a row.
+/// Standalone SVG 1.1.
 std::string heat_map_svg(const std::string& title, const std::string& caption,
                          const std::string& x_label, const std::string& y_label,
                          const std::string& legend_label, const std::vector<HeatPanel>& panels,
