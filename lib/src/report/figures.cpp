@@ -112,7 +112,7 @@ std::size_t index_of(const std::vector<std::string>& list, const std::string& s)
 /// The figure of a finished chart, with the caution kept in its description.
 Figure finish(SvgChart& chart, std::string name) {
     chart.set_note(k_caution);
-    return Figure{std::move(name), chart.to_svg()};
+    return Figure{std::move(name), chart.to_svg(), {}};
 }
 
 /// (x, y) pairs sorted by x (stable) and split into the two coordinate lists.

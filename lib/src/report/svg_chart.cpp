@@ -6,6 +6,7 @@
 #include <cstdlib>
 #include <map>
 #include <string>
+#include <string_view>
 #include <utility>
 
 #include <fmt/format.h>
@@ -559,7 +560,7 @@ std::string SvgChart::to_svg() const {
                     // (3.6 px across): a few bytes a point for scatters of thousands.
                     auto& d = dots[m.series];
                     if (d.first.empty()) d.second = m.size;
-                    d.first += "M" + px(sx(m.x[0])) + "," + px(sy(m.y[0])) + "h0";
+                    d.first += fmt::format("M{},{}h0", px(sx(m.x[0])), px(sy(m.y[0])));
                     break;
                 }
             }
@@ -866,8 +867,8 @@ std::string compose_panels(const std::string& title, const std::string& caption,
             const std::size_t i = r * columns + c;
             if (i >= panels.size()) break;
             // The panel as a nested <svg> placed at (x, y); its own xmlns is harmless.
-            o += "<g class=\"panel\">\n<svg x=\"" + px(x) + "\" y=\"" + px(y) + "\"" +
-                 panels[i].substr(4);
+            o += fmt::format("<g class=\"panel\">\n<svg x=\"{}\" y=\"{}\"", px(x), px(y));
+            o += std::string_view(panels[i]).substr(4);
             if (o.back() != '\n') o += '\n';
             o += "</g>\n";
             x += col_w[c];
@@ -955,9 +956,8 @@ std::string heat_map_svg(const std::string& title, const std::string& caption,
                     ++end;
                 const double xa = sx(ex[c]), xb = sx(ex[end]);
                 const double ya = sy(ey[r + 1]), yb = sy(ey[r]);
-                paths[static_cast<std::size_t>(k)] += "M" + px(xa) + "," + px(ya) + "h" +
-                                                      px(xb - xa) + "v" + px(yb - ya) + "h" +
-                                                      px(xa - xb) + "Z";
+                paths[static_cast<std::size_t>(k)] += fmt::format(
+                    "M{},{}h{}v{}h{}Z", px(xa), px(ya), px(xb - xa), px(yb - ya), px(xa - xb));
                 c = end;
             }
         }
@@ -1001,7 +1001,7 @@ std::string heat_map_svg(const std::string& title, const std::string& caption,
         o += "</svg>\n";
         svgs.push_back(std::move(o));
     }
-    // The legend as a last panel: the scale from 0 to 1 (share of each panel's maximum).
+    // The legend as the first panel: the scale from 0 to 1 (share of each panel's maximum).
     {
         std::string o = fmt::format(
             "<svg xmlns=\"http://www.w3.org/2000/svg\" version=\"1.1\" width=\"{0}\" "
@@ -1028,7 +1028,7 @@ std::string heat_map_svg(const std::string& title, const std::string& caption,
                              px(top + 12.0 + 1.3 * fs * static_cast<double>(i)), px(0.85 * fs),
                              xml_escape(lines[i]));
         o += "</g>\n</svg>\n";
-        svgs.push_back(std::move(o));
+        svgs.insert(svgs.begin(), std::move(o));  // first, where a reader looks for it
     }
     return compose_panels(title, caption, svgs, columns, note);
 }

@@ -201,7 +201,7 @@ struct HeatPanel {
 };
 
 /// Heat maps, one square panel per HeatPanel on a grid of `columns`, with the axis labels,
-/// a legend of the colour scale (sequential_colour in 20 steps; 0 to the panel's maximum)
+/// a legend panel first showing the colour scale (sequential_colour in 20 steps; 0 to the panel's maximum)
 /// labelled `legend_label`, a title and a caption. Cells of one colour step form one
 /// `<path class="cells">`, a closed subpath ("…Z") per run of equal-step cells along a row.
 /// Standalone SVG 1.1.
