@@ -4,6 +4,7 @@
 #include <cassert>
 #include <cmath>
 #include <map>
+#include <numbers>
 #include <numeric>
 #include <string>
 #include <utility>
@@ -93,7 +94,7 @@ constexpr std::size_t k_distribution_bins = 25;
 double normal_cdf(double x) { return 0.5 * std::erfc(-x / std::sqrt(2.0)); }
 double normal_pdf(double x, double mean, double sd) {
     const double u = (x - mean) / sd;
-    return std::exp(-0.5 * u * u) / (sd * std::sqrt(2.0 * M_PI));
+    return std::exp(-0.5 * u * u) / (sd * std::sqrt(2.0 * std::numbers::pi));
 }
 
 /// One stage of the census rows a check is made on: its label, whether the kernel evaluates

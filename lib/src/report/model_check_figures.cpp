@@ -134,8 +134,7 @@ struct Curve {
     std::vector<double> x, y, sd;
 };
 std::vector<std::pair<std::string, Curve>> read_curves(const std::vector<TidyTable>& tables,
-                                                       const std::string& rate,
-                                                       std::vector<std::string>* stages_of_panel) {
+                                                       const std::string& rate) {
     std::vector<std::pair<std::string, Curve>> out;
     const Reader r(tables, "check_curves",
                    {"rate", "microsite", "stage", "kernel", "size", "value", "sd"});
@@ -151,7 +150,6 @@ std::vector<std::pair<std::string, Curve>> read_curves(const std::vector<TidyTab
         it->second.y.push_back(r.num(row, "value"));
         it->second.sd.push_back(r.num(row, "sd"));
     }
-    (void)stages_of_panel;
     return out;
 }
 
@@ -189,7 +187,7 @@ std::optional<Figure> growth_scatter(const std::vector<TidyTable>& tables, const
     // kind 0: growth with the fitted mean and bands; 1: residuals; 2: normal quantile plot.
     std::map<std::string, Curve> pooled;
     if (kind == 0)
-        for (auto& [key, c] : read_curves(tables, "growth", nullptr)) {
+        for (auto& [key, c] : read_curves(tables, "growth")) {
             const auto p = split_key(key);
             if (p[2] == "pooled") pooled[panel_key(p[0], p[1])] = c;
         }
@@ -260,7 +258,7 @@ std::optional<Figure> check_binary_figure(const std::vector<TidyTable>& tables,
         chart.add_points(s, {x}, {r.num(row, "proportion")});
     }
     if (panels.empty()) return std::nullopt;
-    for (auto& [key, c] : read_curves(tables, rate, nullptr)) {
+    for (auto& [key, c] : read_curves(tables, rate)) {
         const auto p = split_key(key);
         const std::string panel = panel_key(p[0], p[1]);
         if (!panels.has(panel)) continue;
@@ -336,7 +334,7 @@ std::optional<Figure> check_seeds_figure(const std::vector<TidyTable>& tables) {
         chart.set_y_label("log\u2081\u2080(seeds + 1)");
         chart.include_y(0.0);
     }
-    for (auto& [key, c] : read_curves(tables, "seeds", nullptr)) {
+    for (auto& [key, c] : read_curves(tables, "seeds")) {
         const auto p = split_key(key);
         const std::string panel = panel_key(p[0], p[1]);
         if (!panels.has(panel)) continue;
@@ -372,7 +370,7 @@ std::optional<Figure> check_recruit_sizes_figure(const std::vector<TidyTable>& t
         const double d = r.num(row, "density");
         chart.add_area(s, {a, b, b, a}, {0.0, 0.0, d, d}, 0.55);
     }
-    for (auto& [key, c] : read_curves(tables, "recruit_size", nullptr)) {
+    for (auto& [key, c] : read_curves(tables, "recruit_size")) {
         const auto p = split_key(key);
         if (!panels.has(p[0]) || p[2] != "pooled") continue;
         SvgChart& chart = panels.at(p[0]);
