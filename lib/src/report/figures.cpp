@@ -12,6 +12,7 @@
 #include "safesite/error.hpp"
 #include "safesite/report/output_folder.hpp"
 #include "safesite/report/caution.hpp"
+#include "safesite/report/model_check_figures.hpp"
 #include "safesite/report/svg_chart.hpp"
 
 namespace safesite::report {
@@ -111,7 +112,7 @@ std::size_t index_of(const std::vector<std::string>& list, const std::string& s)
 /// The figure of a finished chart, with the caution kept in its description.
 Figure finish(SvgChart& chart, std::string name) {
     chart.set_note(k_caution);
-    return Figure{std::move(name), chart.to_svg()};
+    return Figure{std::move(name), chart.to_svg(), {}};
 }
 
 /// (x, y) pairs sorted by x (stable) and split into the two coordinate lists.
@@ -319,6 +320,7 @@ std::vector<Figure> all_figures(const std::vector<TidyTable>& tables) {
                        &arrival_figure, &perturbation_figure}) {
         if (auto f = make(tables)) out.push_back(std::move(*f));
     }
+    for (auto& f : model_check_figures(tables)) out.push_back(std::move(f));
     return out;
 }
 

@@ -3,6 +3,10 @@
 #include <algorithm>
 #include <cassert>
 #include <cmath>
+#include <cstdlib>
+#include <map>
+#include <string>
+#include <string_view>
 #include <utility>
 
 #include <fmt/format.h>
@@ -332,6 +336,9 @@ std::size_t SvgChart::mark_count(const std::string& kind) const {
             case Mark::Kind::band: k = "band"; break;
             case Mark::Kind::ref_x:
             case Mark::Kind::ref_y: k = "reference"; break;
+            case Mark::Kind::area: k = "area"; break;
+            case Mark::Kind::trace: k = "trace"; break;
+            case Mark::Kind::dot: k = "dot"; break;
         }
         if (kind == k) ++n;
     }
@@ -444,6 +451,7 @@ std::string SvgChart::to_svg() const {
     o += "</g>\n";
 
     // 4. Marks, back to front: bands, reference lines, bars, lines, whiskers, points.
+    std::map<std::size_t, std::pair<std::string, double>> dots;  // per series: path, opacity
     auto draw = [&](Mark::Kind kind) {
         for (const auto& m : m_marks) {
             if (m.kind != kind) continue;
@@ -529,12 +537,45 @@ std::string SvgChart::to_svg() const {
                     o += marker(m.series, sx(m.x[0]), sy(m.y[0]), c,
                                 " class=\"point\" stroke=\"#ffffff\" stroke-width=\"1\"");
                     break;
+                case Mark::Kind::area:
+                case Mark::Kind::trace: {
+                    std::string points;
+                    for (std::size_t i = 0; i < m.x.size(); ++i) {
+                        if (i > 0) points += ' ';
+                        points += px(sx(m.x[i])) + "," + px(sy(m.y[i]));
+                    }
+                    if (m.kind == Mark::Kind::area) {
+                        o += fmt::format("<polygon class=\"area\" points=\"{}\" fill=\"{}\" "
+                                         "fill-opacity=\"{}\" stroke=\"none\"/>\n",
+                                         points, c, format_fixed(m.size, 2));
+                    } else {
+                        o += fmt::format("<polyline class=\"trace\" points=\"{}\" fill=\"none\" "
+                                         "stroke=\"{}\" stroke-width=\"1\" stroke-opacity=\"{}\"/>\n",
+                                         points, c, format_fixed(m.size, 2));
+                    }
+                    break;
+                }
+                case Mark::Kind::dot: {
+                    // Dots of a series share one path of zero-length round-capped strokes
+                    // (3.6 px across): a few bytes a point for scatters of thousands.
+                    auto& d = dots[m.series];
+                    if (d.first.empty()) d.second = m.size;
+                    d.first += fmt::format("M{},{}h0", px(sx(m.x[0])), px(sy(m.y[0])));
+                    break;
+                }
             }
         }
     };
-    for (auto kind : {Mark::Kind::band, Mark::Kind::ref_x, Mark::Kind::ref_y, Mark::Kind::bar,
-                      Mark::Kind::line, Mark::Kind::whisker, Mark::Kind::point}) {
+    for (auto kind : {Mark::Kind::band, Mark::Kind::area, Mark::Kind::ref_x, Mark::Kind::ref_y,
+                      Mark::Kind::bar, Mark::Kind::trace, Mark::Kind::dot, Mark::Kind::line,
+                      Mark::Kind::whisker, Mark::Kind::point}) {
         draw(kind);
+        if (kind != Mark::Kind::dot) continue;
+        for (const auto& [series, d] : dots)
+            o += fmt::format("<path class=\"dots\" d=\"{}\" fill=\"none\" stroke=\"{}\" "
+                             "stroke-width=\"3.6\" stroke-linecap=\"round\" "
+                             "stroke-opacity=\"{}\"/>\n",
+                             d.first, colour_of(series), format_fixed(d.second, 2));
     }
 
     // 5. Axes: a line along the left and bottom of the plot, outward ticks, tick labels.
@@ -648,6 +689,348 @@ std::string SvgChart::to_svg() const {
     }
     o += "</svg>\n";
     return o;
+}
+
+
+// --- Model-checking figures (appended) ----------------------------------------------------
+
+void SvgChart::add_area(std::size_t series, const std::vector<double>& x,
+                        const std::vector<double>& y, double opacity) {
+    check_series(series);
+    assert(x.size() == y.size());
+    Mark m{Mark::Kind::area, series, {}, {}, std::clamp(opacity, 0.01, 1.0), {}};
+    for (std::size_t i = 0; i < x.size() && i < y.size(); ++i) {
+        if (!finite(x[i]) || !finite(y[i])) continue;
+        m.x.push_back(x[i]);
+        m.y.push_back(y[i]);
+        include(m_x, x[i]);
+        include(m_y, y[i]);
+    }
+    if (m.x.size() >= 3) m_marks.push_back(std::move(m));
+}
+
+void SvgChart::add_trace(std::size_t series, const std::vector<double>& x,
+                         const std::vector<double>& y, double opacity) {
+    check_series(series);
+    assert(x.size() == y.size());
+    Mark run{Mark::Kind::trace, series, {}, {}, std::clamp(opacity, 0.01, 1.0), {}};
+    auto flush = [&] {
+        if (run.x.size() >= 2) m_marks.push_back(run);
+        run.x.clear();
+        run.y.clear();
+    };
+    for (std::size_t i = 0; i < x.size() && i < y.size(); ++i) {
+        if (!finite(x[i]) || !finite(y[i])) {
+            flush();
+            continue;
+        }
+        run.x.push_back(x[i]);
+        run.y.push_back(y[i]);
+        include(m_x, x[i]);
+        include(m_y, y[i]);
+    }
+    flush();
+}
+
+void SvgChart::add_dots(std::size_t series, const std::vector<double>& x,
+                        const std::vector<double>& y, double opacity) {
+    check_series(series);
+    assert(x.size() == y.size());
+    const double a = std::clamp(opacity, 0.01, 1.0);
+    for (std::size_t i = 0; i < x.size() && i < y.size(); ++i) {
+        if (!finite(x[i]) || !finite(y[i])) continue;
+        m_marks.push_back({Mark::Kind::dot, series, {x[i]}, {y[i]}, a, {}});
+        include(m_x, x[i]);
+        include(m_y, y[i]);
+    }
+}
+
+namespace {
+
+/// Anchors of the heat-map scale in CIELAB (L*, a*, b*) at t = 0, 1/4, 1/2, 3/4, 1: chosen
+/// for safesite (L* falls linearly from 97 to 18; the hue turns from cream over yellow-green,
+/// teal and blue to indigo, never crossing red–green at equal lightness).
+constexpr double k_scale_lab[5][3] = {
+    {97.0, -3.0, 16.0},   // pale cream
+    {77.25, -24.0, 36.0}, // yellow-green
+    {57.5, -32.0, -4.0},  // teal
+    {37.75, -2.0, -38.0}, // blue
+    {18.0, 24.0, -42.0},  // indigo
+};
+
+/// sRGB transfer of a linear channel, clamped to [0, 1] (IEC 61966-2-1).
+double srgb_encode(double c) {
+    c = std::clamp(c, 0.0, 1.0);
+    return c <= 0.0031308 ? 12.92 * c : 1.055 * std::pow(c, 1.0 / 2.4) - 0.055;
+}
+
+double srgb_decode(double c) {
+    return c <= 0.04045 ? c / 12.92 : std::pow((c + 0.055) / 1.055, 2.4);
+}
+
+/// "#rrggbb" of a CIELAB colour (D65 white), clamped into the sRGB gamut.
+std::string lab_to_hex(double L, double a, double b) {
+    const double fy = (L + 16.0) / 116.0;
+    const double fx = fy + a / 500.0;
+    const double fz = fy - b / 200.0;
+    auto finv = [](double t) {
+        constexpr double d = 6.0 / 29.0;
+        return t > d ? t * t * t : 3.0 * d * d * (t - 4.0 / 29.0);
+    };
+    const double X = 0.95047 * finv(fx), Y = finv(fy), Z = 1.08883 * finv(fz);
+    const double r = 3.2406 * X - 1.5372 * Y - 0.4986 * Z;
+    const double g = -0.9689 * X + 1.8758 * Y + 0.0415 * Z;
+    const double bl = 0.0557 * X - 0.2040 * Y + 1.0570 * Z;
+    auto byte = [](double c) { return static_cast<int>(std::lround(255.0 * srgb_encode(c))); };
+    return fmt::format("#{:02x}{:02x}{:02x}", byte(r), byte(g), byte(bl));
+}
+
+/// Width and height attributes of the first tag of an SVG document (0 when absent).
+std::pair<double, double> svg_size(const std::string& svg) {
+    const std::string head = svg.substr(0, svg.find('>'));
+    auto attribute = [&](const std::string& name) {
+        const std::string key = " " + name + "=\"";
+        const auto at = head.find(key);
+        if (at == std::string::npos) return 0.0;
+        return std::atof(head.c_str() + at + key.size());
+    };
+    return {attribute("width"), attribute("height")};
+}
+
+}  // namespace
+
+std::string sequential_colour(double t) {
+    if (!std::isfinite(t)) t = 0.0;
+    t = std::clamp(t, 0.0, 1.0);
+    const double pos = 4.0 * t;
+    const auto k = std::min<std::size_t>(static_cast<std::size_t>(pos), 3);
+    const double f = pos - static_cast<double>(k);
+    double lab[3];
+    for (int j = 0; j < 3; ++j)
+        lab[j] = (1.0 - f) * k_scale_lab[k][j] + f * k_scale_lab[k + 1][j];
+    return lab_to_hex(lab[0], lab[1], lab[2]);
+}
+
+double lightness_of(const std::string& hex) {
+    assert(hex.size() == 7 && hex[0] == '#');
+    auto channel = [&](std::size_t at) {
+        return srgb_decode(std::stoi(hex.substr(at, 2), nullptr, 16) / 255.0);
+    };
+    const double Y = 0.2126 * channel(1) + 0.7152 * channel(3) + 0.0722 * channel(5);
+    const double f = Y > 216.0 / 24389.0 ? std::cbrt(Y) : (24389.0 / 27.0 * Y + 16.0) / 116.0;
+    return 116.0 * f - 16.0;
+}
+
+std::string compose_panels(const std::string& title, const std::string& caption,
+                           const std::vector<std::string>& panels, std::size_t columns,
+                           const std::string& note) {
+    assert(columns >= 1);
+    const double fs = SvgChart::Layout{}.font_size;
+    const double title_h = 16.0 + 2.0 * 1.3 * fs;
+    std::vector<std::pair<double, double>> sizes;
+    for (const auto& p : panels) sizes.push_back(svg_size(p));
+    const std::size_t rows = (panels.size() + columns - 1) / columns;
+    std::vector<double> col_w(columns, 0.0), row_h(rows, 0.0);
+    for (std::size_t i = 0; i < panels.size(); ++i) {
+        col_w[i % columns] = std::max(col_w[i % columns], sizes[i].first);
+        row_h[i / columns] = std::max(row_h[i / columns], sizes[i].second);
+    }
+    double width = 0.0, body = 0.0;
+    for (double w : col_w) width += w;
+    for (double h : row_h) body += h;
+    width = std::max(width, 480.0);
+    const double caption_fs = 0.95 * fs;
+    const double caption_line = 1.35 * caption_fs;
+    const auto chars =
+        static_cast<std::size_t>(std::max((width - 32.0) / (0.5 * caption_fs), 20.0));
+    const std::vector<std::string> lines = wrap(caption, chars);
+    const double height =
+        title_h + body + 8.0 + caption_line * static_cast<double>(lines.size()) + 8.0;
+
+    std::string o;
+    o += fmt::format(
+        "<svg xmlns=\"http://www.w3.org/2000/svg\" version=\"1.1\" width=\"{0}\" height=\"{1}\" "
+        "viewBox=\"0 0 {0} {1}\" font-family=\"sans-serif\" font-size=\"{2}\" fill=\"{3}\">\n",
+        px(width), px(height), px(fs), k_ink);
+    o += "<title>" + xml_escape(title) + "</title>\n";
+    o += "<desc>" + xml_escape(note.empty() ? caption : caption + " " + note) + "</desc>\n";
+    o += fmt::format("<rect class=\"background\" x=\"0\" y=\"0\" width=\"{}\" height=\"{}\" "
+                     "fill=\"#ffffff\"/>\n",
+                     px(width), px(height));
+    o += fmt::format("<text class=\"title\" x=\"16\" y=\"{}\" font-size=\"{}\" "
+                     "font-weight=\"bold\">{}</text>\n",
+                     px(16.0 + 1.3 * fs), px(1.3 * fs), xml_escape(title));
+    double y = title_h;
+    for (std::size_t r = 0; r < rows; ++r) {
+        double x = 0.0;
+        for (std::size_t c = 0; c < columns; ++c) {
+            const std::size_t i = r * columns + c;
+            if (i >= panels.size()) break;
+            // The panel as a nested <svg> placed at (x, y); its own xmlns is harmless.
+            o += fmt::format("<g class=\"panel\">\n<svg x=\"{}\" y=\"{}\"", px(x), px(y));
+            o += std::string_view(panels[i]).substr(4);
+            if (o.back() != '\n') o += '\n';
+            o += "</g>\n";
+            x += col_w[c];
+        }
+        y += row_h[r];
+    }
+    for (std::size_t i = 0; i < lines.size(); ++i) {
+        o += fmt::format("<text class=\"caption\" x=\"16\" y=\"{}\" font-size=\"{}\" "
+                         "fill=\"#444444\">{}</text>\n",
+                         px(y + 8.0 + caption_line * static_cast<double>(i + 1) -
+                            0.35 * caption_fs),
+                         px(caption_fs), xml_escape(lines[i]));
+    }
+    o += "</svg>\n";
+    return o;
+}
+
+std::string heat_map_svg(const std::string& title, const std::string& caption,
+                         const std::string& x_label, const std::string& y_label,
+                         const std::string& legend_label, const std::vector<HeatPanel>& panels,
+                         std::size_t columns, const std::string& note) {
+    assert(columns >= 1);
+    const double fs = SvgChart::Layout{}.font_size;
+    constexpr double side = 190.0;  // plot square, px
+    constexpr double left = 58.0, top = 42.0, right = 16.0, bottom = 50.0;
+    const double panel_w = left + side + right, panel_h = top + side + bottom;
+    std::vector<std::string> svgs;
+    for (const auto& p : panels) {
+        double vmax = 0.0;
+        for (double v : p.values)
+            if (std::isfinite(v)) vmax = std::max(vmax, v);
+        std::string o = fmt::format(
+            "<svg xmlns=\"http://www.w3.org/2000/svg\" version=\"1.1\" width=\"{0}\" "
+            "height=\"{1}\" viewBox=\"0 0 {0} {1}\">\n",
+            px(panel_w), px(panel_h));
+        o += fmt::format("<text class=\"panel-title\" x=\"{}\" y=\"{}\" font-size=\"{}\" "
+                         "font-weight=\"bold\">{}</text>\n",
+                         px(8.0), px(16.0), px(0.9 * fs), xml_escape(shorten(p.title, 36)));
+        o += fmt::format("<text x=\"{}\" y=\"{}\" font-size=\"{}\" fill=\"#444444\">"
+                         "maximum {}</text>\n",
+                         px(8.0), px(32.0), px(0.85 * fs), xml_escape(fmt::format("{:.3g}", vmax)));
+        const std::size_t nx = p.x.size(), ny = p.y.size();
+        if (nx == 0 || ny == 0 || p.values.size() != nx * ny) {
+            o += "</svg>\n";
+            svgs.push_back(std::move(o));
+            continue;
+        }
+        // Cell edges halfway between centres (the end cells as wide as their neighbour).
+        auto edges = [](const std::vector<double>& c) {
+            std::vector<double> e(c.size() + 1);
+            if (c.size() == 1) {
+                e[0] = c[0] - 0.5;
+                e[1] = c[0] + 0.5;
+                return e;
+            }
+            for (std::size_t i = 1; i < c.size(); ++i) e[i] = 0.5 * (c[i - 1] + c[i]);
+            e[0] = c[0] - (e[1] - c[0]);
+            e[c.size()] = c.back() + (c.back() - e[c.size() - 1]);
+            return e;
+        };
+        const auto ex = edges(p.x), ey = edges(p.y);
+        const double x0 = ex.front(), x1 = ex.back(), y0 = ey.front(), y1 = ey.back();
+        auto sx = [&](double v) { return left + (v - x0) / (x1 - x0) * side; };
+        auto sy = [&](double v) { return top + side - (v - y0) / (y1 - y0) * side; };
+        // Colours in 20 steps (those of the legend); each step is one path whose subpaths
+        // are runs of equal-step cells along a row ("M x,y h w v h h −w Z" per run).
+        constexpr int steps = 20;
+        std::vector<std::string> paths(steps);
+        for (std::size_t r = 0; r < ny; ++r) {
+            std::size_t c = 0;
+            while (c < nx) {
+                const double v = p.values[r * nx + c];
+                if (!std::isfinite(v)) {
+                    ++c;
+                    continue;
+                }
+                auto step_of = [&](double x) {
+                    const double t = vmax > 0.0 ? std::max(x, 0.0) / vmax : 0.0;
+                    return std::min(steps - 1, static_cast<int>(t * steps));
+                };
+                const int k = step_of(v);
+                std::size_t end = c + 1;
+                while (end < nx && std::isfinite(p.values[r * nx + end]) &&
+                       step_of(p.values[r * nx + end]) == k)
+                    ++end;
+                const double xa = sx(ex[c]), xb = sx(ex[end]);
+                const double ya = sy(ey[r + 1]), yb = sy(ey[r]);
+                paths[static_cast<std::size_t>(k)] += fmt::format(
+                    "M{},{}h{}v{}h{}Z", px(xa), px(ya), px(xb - xa), px(yb - ya), px(xa - xb));
+                c = end;
+            }
+        }
+        for (int k = 0; k < steps; ++k) {
+            if (paths[static_cast<std::size_t>(k)].empty()) continue;
+            o += fmt::format("<path class=\"cells\" d=\"{}\" fill=\"{}\" stroke=\"{}\" "
+                             "stroke-width=\"0.3\"/>\n",
+                             paths[static_cast<std::size_t>(k)],
+                             sequential_colour((k + 0.5) / steps),
+                             sequential_colour((k + 0.5) / steps));
+        }
+        // Frame, ticks and tick labels.
+        o += fmt::format("<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"none\" "
+                         "stroke=\"{}\" stroke-width=\"1\"/>\n",
+                         px(left), px(top), px(side), px(side), k_ink);
+        const NiceTicks tx = nice_ticks(x0, x1, 4), ty = nice_ticks(y0, y1, 4);
+        for (double t : tx.values) {
+            if (t < x0 || t > x1) continue;
+            o += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\" stroke=\"{3}\"/>\n"
+                             "<text x=\"{0}\" y=\"{4}\" text-anchor=\"middle\" font-size=\"{5}\">"
+                             "{6}</text>\n",
+                             px(sx(t)), px(top + side), px(top + side + 4.0), k_ink,
+                             px(top + side + 6.0 + 0.85 * fs), px(0.85 * fs),
+                             format_fixed(t, tx.decimals));
+        }
+        for (double t : ty.values) {
+            if (t < y0 || t > y1) continue;
+            o += fmt::format("<line x1=\"{1}\" y1=\"{0}\" x2=\"{2}\" y2=\"{0}\" stroke=\"{3}\"/>\n"
+                             "<text x=\"{4}\" y=\"{5}\" text-anchor=\"end\" font-size=\"{6}\">"
+                             "{7}</text>\n",
+                             px(sy(t)), px(left - 4.0), px(left), k_ink, px(left - 6.0),
+                             px(sy(t) + 0.3 * fs), px(0.85 * fs), format_fixed(t, ty.decimals));
+        }
+        o += fmt::format("<text class=\"axis-label\" x=\"{}\" y=\"{}\" text-anchor=\"middle\" "
+                         "font-size=\"{}\">{}</text>\n",
+                         px(left + side / 2.0), px(panel_h - 8.0), px(0.9 * fs),
+                         xml_escape(x_label));
+        o += fmt::format("<text class=\"axis-label\" x=\"{0}\" y=\"{1}\" text-anchor=\"middle\" "
+                         "font-size=\"{2}\" transform=\"rotate(-90 {0} {1})\">{3}</text>\n",
+                         px(14.0), px(top + side / 2.0), px(0.9 * fs), xml_escape(y_label));
+        o += "</svg>\n";
+        svgs.push_back(std::move(o));
+    }
+    // The legend as the first panel: the scale from 0 to 1 (share of each panel's maximum).
+    {
+        std::string o = fmt::format(
+            "<svg xmlns=\"http://www.w3.org/2000/svg\" version=\"1.1\" width=\"{0}\" "
+            "height=\"{1}\" viewBox=\"0 0 {0} {1}\">\n<g class=\"legend\">\n",
+            px(panel_w), px(panel_h));
+        o += fmt::format("<text x=\"16\" y=\"{}\" font-weight=\"bold\">colour scale</text>\n",
+                         px(top - 8.0));
+        constexpr int steps = 20;
+        const double bar_h = side / steps;
+        for (int k = 0; k < steps; ++k) {
+            const double t = (k + 0.5) / steps;
+            o += fmt::format("<rect class=\"swatch\" x=\"16\" y=\"{}\" width=\"24\" height=\"{}\" "
+                             "fill=\"{}\"/>\n",
+                             px(top + side - (k + 1) * bar_h), px(bar_h + 0.5),
+                             sequential_colour(t));
+        }
+        for (double t : {0.0, 0.5, 1.0})
+            o += fmt::format("<text x=\"46\" y=\"{}\" font-size=\"{}\">{}</text>\n",
+                             px(top + side - t * side + 0.3 * fs), px(0.85 * fs),
+                             t == 0.0 ? std::string("0") : format_fixed(t, 1) + " \u00d7 max");
+        const auto lines = wrap(legend_label, 22);
+        for (std::size_t i = 0; i < lines.size(); ++i)
+            o += fmt::format("<text x=\"110\" y=\"{}\" font-size=\"{}\">{}</text>\n",
+                             px(top + 12.0 + 1.3 * fs * static_cast<double>(i)), px(0.85 * fs),
+                             xml_escape(lines[i]));
+        o += "</g>\n</svg>\n";
+        svgs.insert(svgs.begin(), std::move(o));  // first, where a reader looks for it
+    }
+    return compose_panels(title, caption, svgs, columns, note);
 }
 
 }  // namespace safesite::report

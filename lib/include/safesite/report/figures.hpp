@@ -24,6 +24,7 @@ namespace safesite::report {
 struct Figure {
     std::string name;  ///< file stem, e.g. "lambda_by_year" (written as figures/<name>.svg)
     std::string svg;   ///< standalone SVG 1.1 document
+    std::string section;  ///< report section the figure belongs to ("" for the main figures)
 };
 
 /// "lambda_by_year": λ of every census-year kernel (table `lambda`, kernel ≠ pooled) as
@@ -52,7 +53,8 @@ std::optional<Figure> arrival_figure(const std::vector<TidyTable>& tables);
 /// references λ = 1 and δ = 0.
 std::optional<Figure> perturbation_figure(const std::vector<TidyTable>& tables);
 
-/// Every figure the tables allow, in the order of the functions above.
+/// Every figure the tables allow, in the order of the functions above, then the model-checking
+/// figures (model_check_figures.hpp, section "Model checking").
 std::vector<Figure> all_figures(const std::vector<TidyTable>& tables);
 
 /// Write figures already drawn (e.g. all_figures(tables)) as `<dir>/figures/<name>.svg`, each

@@ -115,6 +115,21 @@ public:
     /// The chart as a standalone SVG 1.1 document (starts with `<svg`, ends with `</svg>\n`).
     std::string to_svg() const;
 
+    // --- Marks for model-checking figures (appended) --------------------------------------
+    /// A filled polygon through the finite points (closed), in the series colour at `opacity`
+    /// (0 < opacity <= 1): e.g. a band between two curves, or a histogram bar.
+    void add_area(std::size_t series, const std::vector<double>& x, const std::vector<double>& y,
+                  double opacity = 0.2);
+    /// A thin translucent polyline (width 1 px, `opacity`), broken at non-finite points: e.g.
+    /// the year-specific curves drawn faintly under the pooled one.
+    void add_trace(std::size_t series, const std::vector<double>& x,
+                   const std::vector<double>& y, double opacity = 0.35);
+    /// Small translucent dots (3.6 px across, `opacity`) for many points, e.g. a scatter of
+    /// thousands of plants; drawn as one `<path class="dots">` per series with a zero-length
+    /// round-capped stroke ("M x,y h0") per point. \pre x.size() == y.size().
+    void add_dots(std::size_t series, const std::vector<double>& x,
+                  const std::vector<double>& y, double opacity = 0.35);
+
 private:
     struct Axis {
         std::string label;
@@ -130,11 +145,12 @@ private:
         Dash dash = Dash::solid;
     };
     struct Mark {
-        enum class Kind { point, line, whisker, bar, band, ref_x, ref_y } kind = Kind::point;
+        enum class Kind { point, line, whisker, bar, band, ref_x, ref_y, area, trace, dot } kind =
+            Kind::point;
         std::size_t series = 0;
         std::vector<double> x;  ///< data coordinates (bar: from, to; band: unused)
         std::vector<double> y;  ///< (bar: category; band: lo, hi)
-        double size = 0.0;      ///< bar thickness
+        double size = 0.0;      ///< bar thickness; opacity of area, trace and dot marks
         std::string label;      ///< reference lines, bar values
     };
 
@@ -150,5 +166,48 @@ private:
     std::vector<Series> m_series;
     std::vector<Mark> m_marks;
 };
+
+
+// --- Model-checking figures (appended) ----------------------------------------------------
+
+/// The sequential colour scale of safesite's heat maps at t ∈ [0, 1] (clamped) as "#rrggbb":
+/// a path of our own through CIELAB from pale cream (t = 0, L* ≈ 97) over yellow-green, teal
+/// and blue to deep indigo (t = 1, L* ≈ 18), with L* falling linearly in t. Perceptually
+/// ordered (lightness alone orders it, so it reads in greyscale and under the common
+/// colour-vision deficiencies, which keep lightness); hues avoid a red–green contrast.
+std::string sequential_colour(double t);
+
+/// CIE L* (D65) of an sRGB colour "#rrggbb" (for checks of the scale).
+double lightness_of(const std::string& hex);
+
+/// Several standalone SVG documents (e.g. SvgChart::to_svg() of small charts) placed as
+/// panels on a grid of `columns` columns, left to right then top to bottom, under a title and
+/// over a wrapped caption, as one standalone SVG 1.1 document (each panel is a nested
+/// `<svg>` element with its own size). `note` goes into `<desc>` (e.g. the caution).
+/// \pre columns >= 1; each panel starts with "<svg" and has width and height attributes.
+std::string compose_panels(const std::string& title, const std::string& caption,
+                           const std::vector<std::string>& panels, std::size_t columns,
+                           const std::string& note = {});
+
+/// One panel of a heat map: cell values on a grid of cell centres x (columns) by y (rows),
+/// both ascending; `values` row-major, values[r * x.size() + c] at (x[c], y[r]); non-finite
+/// values are left blank. Each panel is coloured by its own scale from 0 to its largest
+/// value, which its title states.
+struct HeatPanel {
+    std::string title;
+    std::vector<double> x;
+    std::vector<double> y;
+    std::vector<double> values;
+};
+
+/// Heat maps, one square panel per HeatPanel on a grid of `columns`, with the axis labels,
+/// a legend panel first showing the colour scale (sequential_colour in 20 steps; 0 to the panel's maximum)
+/// labelled `legend_label`, a title and a caption. Cells of one colour step form one
+/// `<path class="cells">`, a closed subpath ("…Z") per run of equal-step cells along a row.
+/// Standalone SVG 1.1.
+std::string heat_map_svg(const std::string& title, const std::string& caption,
+                         const std::string& x_label, const std::string& y_label,
+                         const std::string& legend_label, const std::vector<HeatPanel>& panels,
+                         std::size_t columns, const std::string& note = {});
 
 }  // namespace safesite::report
