@@ -27,7 +27,8 @@ RunResult evaluate_fixed(const spec::ModelSpec& model);
 
 /// Every output table of a run, in the order: coefficients, model_comparison, establishment,
 /// (with the seed experiments: trapping, hazards, retention_curve, arrival_chain),
-/// lambda, perturbation, stable_structure, reproductive_value, arrival, scenarios,
+/// lambda, perturbation, stable_structure, reproductive_value, life_history_at_birth,
+/// life_history_by_size, arrival, scenarios,
 /// sensitivities, break_even, diagnostics, assumptions (docs/formats.md).
 std::vector<report::TidyTable> run_tables(const RunResult& result);
 
