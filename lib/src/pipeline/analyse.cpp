@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <memory>
+#include <optional>
 
 #include "safesite/analysis/eigen_error.hpp"
 #include "safesite/analysis/eigen_triple.hpp"
@@ -223,9 +224,10 @@ AnalysisResult analyse(const PreparedModel& model) {
         k.label = rates[i]->label;
         k.lambda = triple.lambda;
         // One LU of I − P for R0 and life expectancy, reused by the life-cycle moments.
-        const analysis::LifeCycleRates cycle_rates = life_cycle_rates(op, *curves[i]);
+        std::optional<analysis::LifeCycleRates> cycle_rates;
+        if (model.life_cycle) cycle_rates = life_cycle_rates(op, *curves[i]);
         const analysis::LifeHistory life = analysis::life_history(
-            op, triple.lambda, model.life_cycle ? &cycle_rates : nullptr);
+            op, triple.lambda, cycle_rates ? &*cycle_rates : nullptr);
         if (life.cycle) k.life_cycle = life_cycle_result(op, life, model.layout.microsites);
         k.r0 = life.net_reproductive_rate;
         k.generation_time = life.generation_time.value_or(KernelResult::nan);
