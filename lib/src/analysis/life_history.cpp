@@ -9,8 +9,8 @@
 #include <algorithm>
 #include <cmath>
 #include <complex>
-#include <limits>
 #include <cstdio>
+#include <limits>
 #include <string>
 
 #include <Eigen/Eigenvalues>

@@ -38,8 +38,7 @@ std::vector<fs::path> write_kernel_matrices(const fs::path& dir, const PreparedM
     std::vector<fs::path> written;
     report::TidyTable index{"kernels", {"kernel", "scenario", "part", "file", "entries"}, {}};
 
-    const kernel::Mesh mesh(model.mesh.lower, model.mesh.upper, model.mesh.points,
-                            model.mesh.rule);
+    const kernel::Mesh mesh(model.mesh.lower, model.mesh.upper, model.mesh.points, model.mesh.rule);
     auto write_part = [&](const kernel::KernelOperator& op, kernel::KernelPart part,
                           const std::string& kernel, const std::string& scenario,
                           const std::string& stem) {
@@ -82,8 +81,8 @@ std::vector<fs::path> write_kernel_matrices(const fs::path& dir, const PreparedM
             const Eigen::Index size = op.group_size(g);
             for (Eigen::Index j = 0; j < size; ++j, ++row) {
                 if (g < op.class_count()) {
-                    const bool first_year = model.layout.juvenile == JuvenileMode::seedling_class &&
-                                            g >= n_sites;
+                    const bool first_year =
+                        model.layout.juvenile == JuvenileMode::seedling_class && g >= n_sites;
                     states.rows.push_back(
                         {report::integer(row), report::text(model.layout.microsites[g % n_sites]),
                          report::text(first_year ? "first-year" : "established"),
@@ -103,13 +102,11 @@ std::vector<fs::path> write_kernel_matrices(const fs::path& dir, const PreparedM
             RecruitmentParameters r;
             r.arrival = sc.arrival;
             r.establishment = sc.establishment_pooled;
-            const kernel::KernelOperator sop(mesh,
-                                             describe_kernel(curves, r, model.mesh.eviction));
+            const kernel::KernelOperator sop(mesh, describe_kernel(curves, r, model.mesh.eviction));
             const std::string sstem =
                 "scenario-" + std::to_string(s + 1) + "-" + file_stem(sc.name);
             index.rows.push_back({report::text(rates[i]->label), report::text(sc.name),
-                                  report::text("P"), report::text(stem + "_P.mtx"),
-                                  p_entries});
+                                  report::text("P"), report::text(stem + "_P.mtx"), p_entries});
             write_part(sop, kernel::KernelPart::reproduction, rates[i]->label, sc.name, sstem);
         }
     }

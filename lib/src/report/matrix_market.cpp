@@ -13,8 +13,7 @@ namespace safesite::report {
 
 MatrixMarketText to_matrix_market(const Eigen::MatrixXd& matrix,
                                   const std::vector<std::string>& comments) {
-    if (!matrix.allFinite())
-        throw UsageError("Matrix Market: the matrix has a non-finite entry");
+    if (!matrix.allFinite()) throw UsageError("Matrix Market: the matrix has a non-finite entry");
     for (const auto& c : comments)
         if (c.find_first_of("\r\n") != std::string::npos)
             throw UsageError("Matrix Market: a comment must be one line");

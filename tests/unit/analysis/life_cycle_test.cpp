@@ -144,16 +144,15 @@ TEST_CASE("life cycle invariants on a random structured kernel", "[analysis][uni
           -1e-10);
 
     const Eigen::VectorXd om = op.state_weights();
-    const Eigen::MatrixXd P = om.asDiagonal() * op.to_dense(KernelPart::survival_growth) *
-                              om.cwiseInverse().asDiagonal();
-    const Eigen::MatrixXd F = om.asDiagonal() * op.to_dense(KernelPart::reproduction) *
-                              om.cwiseInverse().asDiagonal();
+    const Eigen::MatrixXd P =
+        om.asDiagonal() * op.to_dense(KernelPart::survival_growth) * om.cwiseInverse().asDiagonal();
+    const Eigen::MatrixXd F =
+        om.asDiagonal() * op.to_dense(KernelPart::reproduction) * om.cwiseInverse().asDiagonal();
     const auto b = life_history(P, F, t.lambda, &r);
     REQUIRE(b.cycle.has_value());
     CHECK((c.flowering_probability - b.cycle->flowering_probability).cwiseAbs().maxCoeff() <=
           1e-10);
-    CHECK((c.reward_second_moment - b.cycle->reward_second_moment).cwiseAbs().maxCoeff() <=
-          1e-9);
+    CHECK((c.reward_second_moment - b.cycle->reward_second_moment).cwiseAbs().maxCoeff() <= 1e-9);
 }
 
 TEST_CASE("life cycle: inadmissible rates and birth distributions are usage errors",
@@ -168,6 +167,5 @@ TEST_CASE("life cycle: inadmissible rates and birth distributions are usage erro
     const auto lh = life_history(v.P, v.F, 1.0, &v.rates);
     REQUIRE_THROWS_AS(cohort_life_cycle(lh, Eigen::Vector2d(0.5, 0.6)), safesite::UsageError);
     const auto plain = life_history(v.P, v.F, 1.0);
-    REQUIRE_THROWS_AS(cohort_life_cycle(plain, Eigen::Vector2d(0.5, 0.5)),
-                      safesite::UsageError);
+    REQUIRE_THROWS_AS(cohort_life_cycle(plain, Eigen::Vector2d(0.5, 0.5)), safesite::UsageError);
 }

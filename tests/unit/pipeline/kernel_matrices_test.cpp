@@ -147,13 +147,11 @@ TEST_CASE("kernel matrices read back give the run's lambda to 1e-10", "[pipeline
     // Round trip: each written value is the same double as the kernel's (17 significant
     // digits, IEEE 754 round trip); dropped entries are ≤ 1e-17 max|P|.
     const auto& model = result.fit.model;
-    const kernel::Mesh mesh(model.mesh.lower, model.mesh.upper, model.mesh.points,
-                            model.mesh.rule);
+    const kernel::Mesh mesh(model.mesh.lower, model.mesh.upper, model.mesh.points, model.mesh.rule);
     const kernel::KernelOperator op(
         mesh, pipeline::describe_kernel(
                   pipeline::evaluate_rates(model.pooled, model.layout, mesh.points()),
-                  pipeline::baseline_recruitment(model, model.years.size()),
-                  model.mesh.eviction));
+                  pipeline::baseline_recruitment(model, model.years.size()), model.mesh.eviction));
     const Eigen::MatrixXd P0 = op.to_dense(kernel::KernelPart::survival_growth);
     const double cut = report::matrix_market_relative_threshold * P0.cwiseAbs().maxCoeff();
     for (Eigen::Index j = 0; j < P0.cols(); ++j)
@@ -179,9 +177,9 @@ TEST_CASE("kernel matrices read back give the run's lambda to 1e-10", "[pipeline
         CHECK(std::stol(mesh_csv.cell(r, index)) == static_cast<long>(r + 1));
         weights += std::stod(mesh_csv.cell(r, weight));
     }
-    CHECK(weights == Approx(static_cast<double>(op.class_count()) *
-                            (model.mesh.upper - model.mesh.lower))
-                         .epsilon(1e-12));
+    CHECK(weights ==
+          Approx(static_cast<double>(op.class_count()) * (model.mesh.upper - model.mesh.lower))
+              .epsilon(1e-12));
 
     // Scenario "every seed on bare gravel": its F sends no recruits into any cushion state
     // (rows whose microsite in mesh.csv is cushion) and some into the gravel states.

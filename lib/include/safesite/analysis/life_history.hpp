@@ -42,7 +42,8 @@ struct LifeCycleRates {
 /// - reward_mean and reward_second_moment: the first two moments of the reward accumulated
 ///   over the remaining life, the current census included (Markov chain with rewards,
 ///   Caswell 2001 ch. 5; derived in life_history.cpp):
-///   \f$m_1^\top = \rho_1^\top N\f$, \f$m_2^\top = (\rho_2 + 2\rho_1 \circ (m_1 - \rho_1))^\top N\f$.
+///   \f$m_1^\top = \rho_1^\top N\f$,
+///   \f$m_2^\top = (\rho_2 + 2\rho_1 \circ (m_1 - \rho_1))^\top N\f$.
 ///   The variance is m2 − m1². Assumes the reward in a year is independent of the fate
 ///   (survival, growth) given the state.
 /// With mesh weights ω the per-individual chain is \f$\Omega P \Omega^{-1}\f$; every formula
