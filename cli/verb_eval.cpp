@@ -8,6 +8,7 @@
 
 #include "common.hpp"
 #include "options.hpp"
+#include "safesite/pipeline/kernel_matrices.hpp"
 #include "safesite/pipeline/run.hpp"
 #include "safesite/report/output_folder.hpp"
 #include "safesite/report/text_summary.hpp"
@@ -63,8 +64,10 @@ int run_eval(const EvalOptions& o, const Streams& io) {
     }
     io.out << report::render_summary({growth, kernel_elas, elas}, info);
     if (!o.out.empty()) {
-        const auto written =
-            report::write_output_folder(o.out, pipeline::run_tables(result), info);
+        auto written = report::write_output_folder(o.out, pipeline::run_tables(result), info);
+        if (model.output.matrices)
+            for (auto& p : pipeline::write_kernel_matrices(o.out, result.fit.model, a))
+                written.push_back(std::move(p));
         io.out << "wrote " << written.size() << " files to " << o.out << "\n";
     }
     return 0;

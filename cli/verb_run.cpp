@@ -10,6 +10,7 @@
 #include "common.hpp"
 #include "options.hpp"
 #include "safesite/pipeline/bootstrap.hpp"
+#include "safesite/pipeline/kernel_matrices.hpp"
 #include "safesite/pipeline/run.hpp"
 #include "safesite/report/figures.hpp"
 #include "safesite/report/html_report.hpp"
@@ -77,6 +78,9 @@ int run_run(const RunOptions& o, const Streams& io) {
     const std::vector<report::Figure> figures = report::all_figures(tables);
     for (auto& p : report::write_figures(dir, figures)) written.push_back(std::move(p));
     written.push_back(report::write_html_report(dir, tables, info, figures));
+    if (model.output.matrices)
+        for (auto& p : pipeline::write_kernel_matrices(dir, result.fit.model, result.analysis))
+            written.push_back(std::move(p));
     report::TextOptions text;
     text.max_rows = 40;
     // The terminal shows the scenarios of the pooled kernel; every year is in the files.

@@ -71,3 +71,9 @@ safesite_cli_case(NAME simulate-experiments
                   FILES "${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments/trapping.csv|${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments/retention.csv|${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments/truth-arrival.csv|${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments/census.csv")
 safesite_cli_case(NAME eval-fixed-example ARGS "eval|models/fixed-example.toml" STATUS 0
                   STDOUT "pooled +[0-9.]+")
+# The kernels as Matrix Market files and the life-history tables (issue 10 §3).
+safesite_cli_case(NAME eval-fixed-example-matrices
+                  ARGS "eval|models/fixed-example.toml|--out|${CMAKE_CURRENT_BINARY_DIR}/eval-out" STATUS 0
+                  STDOUT "wrote [0-9]+ files"
+                  REMOVE "${CMAKE_CURRENT_BINARY_DIR}/eval-out/matrices/pooled_P.mtx"
+                  FILES "${CMAKE_CURRENT_BINARY_DIR}/eval-out/matrices/pooled_P.mtx|${CMAKE_CURRENT_BINARY_DIR}/eval-out/matrices/pooled_F.mtx|${CMAKE_CURRENT_BINARY_DIR}/eval-out/matrices/mesh.csv|${CMAKE_CURRENT_BINARY_DIR}/eval-out/matrices/kernels.csv|${CMAKE_CURRENT_BINARY_DIR}/eval-out/matrices/scenario-1-every-seed-on-bare-gravel_F.mtx|${CMAKE_CURRENT_BINARY_DIR}/eval-out/life_history_at_birth.csv|${CMAKE_CURRENT_BINARY_DIR}/eval-out/life_history_by_size.csv")

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <memory>
+#include <optional>
 
 #include "safesite/analysis/eigen_error.hpp"
 #include "safesite/analysis/eigen_triple.hpp"
@@ -115,6 +116,60 @@ Eigen::VectorXd scaled_establishment(const PreparedModel& model, const Eigen::Ve
     return out;
 }
 
+// Per-state rates of the life-cycle measures: flowering p(z_i) and the seeds produced in one
+// census interval, Y = flowered · b(z) with flowering Bernoulli(p) and the seed number at its
+// mean b: ρ1 = p b, ρ2 = E[Y²] = p b² (the spread of seed numbers among flowering plants of one
+// size is not included; docs/methods/life-history.md). Stages: 0.
+analysis::LifeCycleRates life_cycle_rates(const kernel::KernelOperator& op,
+                                          const KernelCurves& curves) {
+    analysis::LifeCycleRates r;
+    r.flowering = Eigen::VectorXd::Zero(op.rows());
+    r.reward = Eigen::VectorXd::Zero(op.rows());
+    r.reward_square = Eigen::VectorXd::Zero(op.rows());
+    for (std::size_t c = 0; c < op.class_count(); ++c) {
+        const ClassCurves& k = curves.classes.at(c);
+        const Eigen::Index at = op.group_offset(c), n = op.group_size(c);
+        r.flowering.segment(at, n) = k.flowering;
+        r.reward.segment(at, n) = k.flowering.cwiseProduct(k.seeds);
+        r.reward_square.segment(at, n) =
+            k.flowering.cwiseProduct(k.seeds).cwiseProduct(k.seeds);
+    }
+    return r;
+}
+
+// The life-cycle result from the analysis module's per-state measures; a recruit of microsite
+// m is born with the numbers π_i ∝ ω_i c_m(z_i) in the entry class (normalised to 1: the
+// recruit-size mass on the mesh after the eviction policy).
+LifeCycleResult life_cycle_result(const kernel::KernelOperator& op,
+                                  const analysis::LifeHistory& life,
+                                  const std::vector<std::string>& microsites) {
+    const analysis::LifeCycle& c = *life.cycle;
+    const Eigen::Index classes_end =
+        op.class_count() > 0 ? op.group_offset(op.class_count() - 1) +
+                                   op.group_size(op.class_count() - 1)
+                             : 0;
+    LifeCycleResult out;
+    out.life_expectancy = life.life_expectancy.head(classes_end);
+    out.flowering_probability = c.flowering_probability.head(classes_end);
+    out.first_flowering_age = c.first_flowering_age.head(classes_end);
+    out.seeds_mean = c.reward_mean.head(classes_end);
+    out.seeds_variance = (c.reward_second_moment - c.reward_mean.cwiseProduct(c.reward_mean))
+                             .head(classes_end)
+                             .cwiseMax(0.0);
+    for (std::size_t m = 0; m < op.microsite_count(); ++m) {
+        const std::size_t entry = op.entry_class(m);
+        Eigen::VectorXd birth = Eigen::VectorXd::Zero(op.rows());
+        birth.segment(op.group_offset(entry), op.group_size(entry)) =
+            op.mesh().weights().cwiseProduct(op.recruit_density(m));
+        const double total = birth.sum();
+        if (!(total > 0.0)) continue;
+        const analysis::CohortLifeCycle h = analysis::cohort_life_cycle(life, birth / total);
+        out.at_birth.push_back({microsites.at(m), h.life_expectancy, h.flowering_probability,
+                                h.first_flowering_age, h.reward_mean, h.reward_variance});
+    }
+    return out;
+}
+
 }  // namespace
 
 RecruitmentParameters baseline_recruitment(const PreparedModel& model, std::size_t index) {
@@ -168,7 +223,12 @@ AnalysisResult analyse(const PreparedModel& model) {
         KernelResult k;
         k.label = rates[i]->label;
         k.lambda = triple.lambda;
-        const analysis::LifeHistory life = analysis::life_history(op, triple.lambda);
+        // One LU of I − P for R0 and life expectancy, reused by the life-cycle moments.
+        std::optional<analysis::LifeCycleRates> cycle_rates;
+        if (model.life_cycle) cycle_rates = life_cycle_rates(op, *curves[i]);
+        const analysis::LifeHistory life = analysis::life_history(
+            op, triple.lambda, cycle_rates ? &*cycle_rates : nullptr);
+        if (life.cycle) k.life_cycle = life_cycle_result(op, life, model.layout.microsites);
         k.r0 = life.net_reproductive_rate;
         k.generation_time = life.generation_time.value_or(KernelResult::nan);
         k.points = mesh.size();

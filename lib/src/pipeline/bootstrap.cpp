@@ -163,6 +163,7 @@ std::vector<double> replicate(const Context& ctx, std::size_t r, std::uint64_t s
     m.survival_changes.clear();
     m.stochastic_years = 0;
     m.decompose_years = false;
+    m.life_cycle = false;
     const AnalysisResult a = analyse(m);
 
     std::map<std::string, double> got;

@@ -76,6 +76,47 @@ TidyTable structure_table(const AnalysisResult& r, bool reproductive) {
     return t;
 }
 
+// Life-cycle measures of a recruit of each microsite, every kernel (docs/formats.md).
+TidyTable life_at_birth_table(const AnalysisResult& r) {
+    TidyTable t{"life_history_at_birth",
+                {"kernel", "microsite", "life_expectancy", "flowering_probability",
+                 "first_flowering_age", "seeds_mean", "seeds_variance"},
+                {}};
+    for (const auto& k : r.kernels) {
+        if (!k.life_cycle) continue;
+        for (const auto& b : k.life_cycle->at_birth)
+            t.rows.push_back({txt(k.label), txt(b.microsite), num(b.life_expectancy),
+                              num(b.flowering_probability), num(b.first_flowering_age),
+                              num(b.seeds_mean), num(b.seeds_variance)});
+    }
+    return t;
+}
+
+// Life-cycle measures per microsite, stage and mesh node of the pooled kernel.
+TidyTable life_by_size_table(const AnalysisResult& r) {
+    TidyTable t{"life_history_by_size",
+                {"kernel", "microsite", "stage", "size", "life_expectancy",
+                 "flowering_probability", "first_flowering_age", "seeds_mean",
+                 "seeds_variance"},
+                {}};
+    const KernelResult& k = r.pooled();
+    if (!k.life_cycle) return t;
+    const LifeCycleResult& c = *k.life_cycle;
+    const Eigen::Index n = k.nodes.size();
+    const std::size_t classes = n > 0 ? static_cast<std::size_t>(c.life_expectancy.size() / n) : 0;
+    for (std::size_t cl = 0; cl < classes; ++cl)
+        for (Eigen::Index i = 0; i < n; ++i) {
+            const Eigen::Index at = static_cast<Eigen::Index>(cl) * n + i;
+            t.rows.push_back({txt(k.label),
+                              txt(r.layout.microsites[cl % r.layout.microsites.size()]),
+                              txt(stage_name(r.layout, cl)), num(k.nodes[i]),
+                              num(c.life_expectancy[at]), num(c.flowering_probability[at]),
+                              num(c.first_flowering_age[at]), num(c.seeds_mean[at]),
+                              num(c.seeds_variance[at])});
+        }
+    return t;
+}
+
 TidyTable arrival_table(const AnalysisResult& r) {
     TidyTable t{"arrival", {"scenario", "microsite", "fraction", "source"}, {}};
     const std::string source =
@@ -191,6 +232,7 @@ std::vector<report::TidyTable> analysis_tables(const AnalysisResult& result) {
     return {lambda_table(result),       stochastic_table(result), decomposition_table(result),
             perturbation_table(result),
             structure_table(result, false), structure_table(result, true),
+            life_at_birth_table(result), life_by_size_table(result),
             arrival_table(result),      scenario_table(result),
             sensitivity_table(result),  break_even_table(result),
             diagnostics_table(result),  assumptions_table(result)};

@@ -393,6 +393,10 @@ std::string table_description(const std::string& name) {
         {"perturbation", "\u03bb under proportional changes of juvenile survival."},
         {"stable_structure", "Stable size structure of every kernel per microsite and stage."},
         {"reproductive_value", "Reproductive value of every kernel per microsite and stage."},
+        {"life_history_at_birth", "Life expectancy, flowering before death, age at first "
+                                  "flowering and lifetime seeds of a recruit per microsite."},
+        {"life_history_by_size", "The same life-history measures per size, microsite and "
+                                 "stage (pooled kernel)."},
         {"arrival", "Arrival fraction per microsite, baseline and scenarios."},
         {"scenarios", "\u03bb and its change under each scenario, per kernel."},
         {"sensitivities", "Sensitivities and elasticities of \u03bb to single parameters."},

@@ -1158,12 +1158,13 @@ ModelSpec read_document(const toml::table& doc, const std::filesystem::path& fil
     // [output]
     spec.output.dir = resolve(file, "out");
     if (auto r = root.table("output")) {
-        r->allow({"dir", "print_coordinates"});
+        r->allow({"dir", "print_coordinates", "matrices"});
         if (auto d = r->string("dir")) {
             if (d->empty()) r->fail("dir", "'output.dir' must not be empty");
             spec.output.dir = resolve(file, *d);
         }
         if (auto b = r->boolean("print_coordinates")) spec.output.print_coordinates = *b;
+        if (auto b = r->boolean("matrices")) spec.output.matrices = *b;
     }
     // [simulate] (truth files)
     if (auto r = root.table("simulate"))

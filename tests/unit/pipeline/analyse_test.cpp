@@ -258,3 +258,39 @@ TEST_CASE("analyse: a direct-fraction scenario changes lambda as the closed form
     m.scenarios = {cover};
     CHECK_THROWS_AS(analyse(m), UsageError);
 }
+
+TEST_CASE("analyse: life-cycle measures of a size-independent first-year-class model",
+          "[pipeline][unit]") {
+    // Pooled kernel: first-year survival s_J = 0.3, established s_E = 0.6, flowering p = 0.5
+    // at every size and stage, b = 20 seeds per flowering plant. Hand-derived (geometric
+    // series; the recruit is born in the first-year class):
+    //   life expectancy 1 + s_J/(1 − s_E) = 1.75;
+    //   B_E = p/(1 − (1 − p)s_E) = 5/7, B_J = p + (1 − p) s_J B_E = 17/28;
+    //   first flowering at age a ≥ 1 with probability 0.075·0.3^(a−1), so
+    //   E[age | flowers] = (0.075/0.7²)/(17/28) = 30/119;
+    //   seeds ρ1 = p b = 10, ρ2 = p b² = 200: m1_E = 25, m2_E = (200 + 2·10·15)/0.4 = 1250,
+    //   m1_J = 10 + 0.3·25 = 17.5, m2_J = 200 + 2·10·7.5 + 0.3·1250 = 725,
+    //   variance 725 − 17.5² = 418.75 (= b²(E[L]·¼ + Var L·¼) with Var L = 2.4375).
+    // Gauss–Legendre integrates the Gaussian densities to ~1e-12 here, hence 1e-9.
+    PreparedModel m = simple_model(JuvenileMode::seedling_class);
+    m.pooled.flowering.mean = constant(m.layout.microsites, 0.5);
+    const AnalysisResult r = analyse(m);
+    REQUIRE(r.pooled().life_cycle.has_value());
+    const LifeCycleResult& c = *r.pooled().life_cycle;
+    REQUIRE(c.at_birth.size() == 2);
+    for (const auto& b : c.at_birth) {
+        CHECK(b.life_expectancy == Approx(1.75).epsilon(1e-9));
+        CHECK(b.flowering_probability == Approx(17.0 / 28.0).epsilon(1e-9));
+        CHECK(b.first_flowering_age == Approx(30.0 / 119.0).epsilon(1e-9));
+        CHECK(b.seeds_mean == Approx(17.5).epsilon(1e-9));
+        CHECK(b.seeds_variance == Approx(418.75).epsilon(1e-9));
+    }
+    // By size: established plants (classes 0..1, nodes 0..n−1) have B = 5/7 and a seed
+    // variance of b²(2.5·¼ + 3.75·¼) = 625 at every size.
+    const Eigen::Index n = static_cast<Eigen::Index>(m.mesh.points);
+    CHECK(c.flowering_probability.head(n).minCoeff() == Approx(5.0 / 7.0).epsilon(1e-9));
+    CHECK(c.seeds_variance.head(n).maxCoeff() == Approx(625.0).epsilon(1e-9));
+    // Not computed when switched off (the bootstrap does so).
+    m.life_cycle = false;
+    CHECK_FALSE(analyse(m).pooled().life_cycle.has_value());
+}

@@ -24,6 +24,30 @@ struct PerturbationPoint {
     double lambda = 0.0;   ///< λ under the change
 };
 
+/// Life-cycle measures of one kernel (docs/methods/life-history.md; analysis/life_history.hpp):
+/// per class and mesh node, and for a recruit born in each microsite at its recruit-size
+/// distribution. Times in census intervals; seeds are the seeds produced (p(z) b(z) per year),
+/// not recruits.
+struct LifeCycleResult {
+    /// Per class and node, class-major (B·n) like KernelResult::w: expected number of censuses
+    /// alive, the current one included (1ᵀN per individual).
+    Eigen::VectorXd life_expectancy;
+    Eigen::VectorXd flowering_probability;  ///< probability of flowering before death
+    Eigen::VectorXd first_flowering_age;    ///< mean intervals to first flowering (NaN: never)
+    Eigen::VectorXd seeds_mean;             ///< mean lifetime seed production
+    Eigen::VectorXd seeds_variance;         ///< its variance
+    /// A recruit of microsite m (entry class, recruit-size distribution on the mesh).
+    struct AtBirth {
+        std::string microsite;
+        double life_expectancy = 0.0;
+        double flowering_probability = 0.0;
+        double first_flowering_age = 0.0;
+        double seeds_mean = 0.0;
+        double seeds_variance = 0.0;
+    };
+    std::vector<AtBirth> at_birth;  ///< one per microsite with recruits on the mesh
+};
+
 /// One kernel (a census year t → t+1, or "pooled") and what was computed on it.
 struct KernelResult {
     static constexpr double nan = std::numeric_limits<double>::quiet_NaN();
@@ -64,6 +88,9 @@ struct KernelResult {
     std::vector<PerturbationPoint> perturbation;  ///< juvenile survival changes
     double juvenile_sensitivity = nan;  ///< dλ/dε for s_J → s_J + ε
     double juvenile_elasticity = nan;   ///< (1/λ) dλ/dδ for s_J → (1 + δ) s_J
+
+    /// With PreparedModel::life_cycle.
+    std::optional<LifeCycleResult> life_cycle;
 };
 
 /// One scenario's arrival, establishment and λ (pooled and per year).

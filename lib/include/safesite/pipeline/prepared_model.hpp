@@ -72,6 +72,9 @@ struct PreparedModel {
     bool break_even = true;
     /// Check mesh convergence by rebuilding every kernel with 2n points.
     bool mesh_check = true;
+    /// Life-cycle measures of every kernel (flowering before death, age at first flowering,
+    /// lifetime seed production): one more dense LU per kernel.
+    bool life_cycle = true;
     /// Decompose each census year's λ − pooled λ by vital rate (symmetric substitution).
     bool decompose_years = true;
     /// Years simulated for the stochastic growth rate of the year kernels (0: not computed;

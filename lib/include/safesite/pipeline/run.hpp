@@ -32,9 +32,10 @@ RunResult evaluate_fixed(const spec::ModelSpec& model);
 
 /// Every output table of a run, in the order: coefficients, model_comparison, establishment,
 /// (with the seed experiments: trapping, hazards, retention_curve, arrival_chain),
-/// lambda, perturbation, stable_structure, reproductive_value, arrival, scenarios,
-/// sensitivities, break_even, diagnostics, assumptions, then the model checks (`check_*`,
-/// model_check_tables; only `check_surfaces` without data) (docs/formats.md).
+/// lambda, perturbation, stable_structure, reproductive_value, life_history_at_birth,
+/// life_history_by_size, arrival, scenarios, sensitivities, break_even, diagnostics,
+/// assumptions, then the model checks (`check_*`, model_check_tables; only `check_surfaces`
+/// without data) (docs/formats.md).
 std::vector<report::TidyTable> run_tables(const RunResult& result);
 
 }  // namespace safesite::pipeline

@@ -110,6 +110,8 @@ struct UncertaintySpec {
 struct OutputSpec {
     std::filesystem::path dir;  ///< resolved against the model file's folder (default "out")
     bool print_coordinates = false;
+    /// Write the discretised P and F of every kernel (Matrix Market files in `matrices/`).
+    bool matrices = true;
 };
 
 /// The whole model file.
