@@ -144,12 +144,11 @@ std::vector<EvictionPeak> eviction_peaks(const kernel::KernelOperator& op,
 
 std::string percent(double share) { return core::number_text(100.0 * share, 3) + " %"; }
 
-// One warning per class and part whose share off the mesh exceeds the threshold in some
-// kernel, naming the worst kernel.
+// One warning per part (growth, recruit size) whose share off the mesh exceeds the threshold
+// in some kernel and class: it names the worst kernel, class, size and share, and the other
+// classes over the threshold (with one growth model for every class they often all are).
 void eviction_warnings(const AnalysisResult& result, const MeshSettings& mesh,
                        std::vector<std::string>& warnings) {
-    if (result.kernels.empty()) return;
-    const std::size_t peaks = result.kernels.front().eviction.size();
     const auto t = mesh.size_transform;
     auto size_text = [&](double z) {
         std::string out = core::number_text(census::invert(t, z), 4);
@@ -157,32 +156,45 @@ void eviction_warnings(const AnalysisResult& result, const MeshSettings& mesh,
             out += " (" + core::number_text(z, 4) + " on the kernel scale)";
         return out;
     };
-    for (std::size_t p = 0; p < peaks; ++p) {
-        const KernelResult* worst = nullptr;
+    for (const char* part : {"growth", "recruit_size"}) {
+        const KernelResult* worst_kernel = nullptr;
+        const EvictionPeak* worst = nullptr;
         std::size_t over = 0;
-        for (const KernelResult& k : result.kernels) {
-            if (k.eviction.size() != peaks || !(k.eviction[p].share > mesh.eviction_warning))
-                continue;
-            ++over;
-            if (!worst || k.eviction[p].share > worst->eviction[p].share) worst = &k;
-        }
+        std::vector<std::size_t> classes;
+        for (const KernelResult& k : result.kernels)
+            for (const EvictionPeak& e : k.eviction) {
+                if (e.part != part || !(e.share > mesh.eviction_warning)) continue;
+                ++over;
+                if (std::find(classes.begin(), classes.end(), e.class_index) == classes.end())
+                    classes.push_back(e.class_index);
+                if (!worst || e.share > worst->share) {
+                    worst = &e;
+                    worst_kernel = &k;
+                }
+            }
         if (!worst) continue;
-        const EvictionPeak& e = worst->eviction[p];
-        const bool growth = e.part == "growth";
-        const std::string key = e.above ? "upper" : "lower";
-        std::string w = "eviction: kernel " + worst->label + ", class " +
-                        class_name(result.layout, e.class_index) + ": " + percent(e.share) +
-                        " of the " +
-                        (growth ? "growth mass of plants of size " + size_text(e.size)
+        const bool growth = worst->part == "growth";
+        std::string others;
+        for (std::size_t c : classes)
+            if (c != worst->class_index)
+                others += (others.empty() ? "" : ", ") + class_name(result.layout, c);
+        std::string w = "eviction: kernel " + worst_kernel->label + ", class " +
+                        class_name(result.layout, worst->class_index) + ": " +
+                        percent(worst->share) + " of the " +
+                        (growth ? "growth mass of plants of size " + size_text(worst->size)
                                 : std::string("recruit-size mass")) +
-                        " falls " + (e.above ? "above the mesh upper bound U = " :
-                                               "below the mesh lower bound L = ") +
-                        size_text(e.above ? mesh.upper : mesh.lower);
+                        " falls " +
+                        (worst->above ? "above the mesh upper bound U = "
+                                      : "below the mesh lower bound L = ") +
+                        size_text(worst->above ? mesh.upper : mesh.lower);
         if (over > 1)
-            w += "; " + std::to_string(over - 1) + " other kernel(s) also lose more than " +
-                 percent(mesh.eviction_warning);
-        w += ". Widen the mesh: " + std::string(e.above ? "raise" : "lower") + " [mesh] " + key +
-             " (or, when the bounds are derived from the data, raise [mesh] margin)";
+            w += "; " + std::to_string(over) + " kernel-class pairs lose more than " +
+                 percent(mesh.eviction_warning) +
+                 (others.empty() ? std::string() : " (also classes " + others + ")");
+        w += ". Widen the mesh: " + std::string(worst->above ? "raise [mesh] upper"
+                                                             : "lower [mesh] lower") +
+             " (or, when the bounds are derived from the data, raise [mesh] margin); table "
+             "eviction has every share";
         warnings.push_back(std::move(w));
     }
 }
@@ -215,14 +227,21 @@ void mesh_warnings(const AnalysisResult& result, std::vector<std::string>& warni
 // of its pooled kernel when there is one (else its first kernel).
 void reducibility_warnings(const AnalysisResult& result, std::vector<std::string>& warnings) {
     std::vector<std::string> settings;
+    // Warn where the answer changes: λ of the self-renewing part differs from the whole
+    // kernel's dominant eigenvalue, or nothing renews itself (the table lists every case).
+    auto matters = [](const ReducibleKernel& r) {
+        return !(r.lambda_renewing > 0.0) ||
+               std::abs(r.lambda_renewing - r.lambda_kernel) > 1e-9 * r.lambda_kernel;
+    };
     for (const auto& r : result.reducible)
-        if (std::find(settings.begin(), settings.end(), r.setting) == settings.end())
+        if (matters(r) &&
+            std::find(settings.begin(), settings.end(), r.setting) == settings.end())
             settings.push_back(r.setting);
     for (const auto& setting : settings) {
         const ReducibleKernel* shown = nullptr;
         std::string kernels;
         for (const auto& r : result.reducible) {
-            if (r.setting != setting) continue;
+            if (r.setting != setting || !matters(r)) continue;
             kernels += (kernels.empty() ? "" : ", ") + r.kernel;
             if (!shown || r.kernel == "pooled") shown = &r;
         }

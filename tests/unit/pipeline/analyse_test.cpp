@@ -351,7 +351,7 @@ TEST_CASE("analyse: eviction peaks over the observed sizes and the mesh check wa
     std::size_t eviction_warnings = 0;
     for (const auto& w : r.warnings)
         if (w.rfind("eviction:", 0) == 0) ++eviction_warnings;
-    CHECK(eviction_warnings == 4);  // one per class and part
+    CHECK(eviction_warnings == 2);  // one per part (growth, recruit size)
 
     m.mesh.eviction_warning = 0.2;
     const AnalysisResult quiet = analyse(m);
