@@ -357,3 +357,29 @@ TEST_CASE("analyse: eviction peaks over the observed sizes and the mesh check wa
     const AnalysisResult quiet = analyse(m);
     for (const auto& w : quiet.warnings) CHECK(w.rfind("eviction:", 0) != 0);
 }
+
+TEST_CASE("analyse: the mesh check warns when lambda moves between n and 2n points",
+          "[pipeline][unit]") {
+    // Six midpoint cells of width 1 on [−1, 5] cannot integrate a N(2, 0.3²) growth density
+    // (Σ h g(z_i | z) ≈ 0.66 instead of 1, by hand from the normal density at ±1.67 sd), so λ
+    // with 6 and 12 points differs well above the 1e-4 tolerance; with 40 Gauss–Legendre
+    // points the closed form holds to 1e-9 (first test case), so the check stays quiet.
+    PreparedModel m = simple_model(JuvenileMode::size_threshold);
+    m.survival_changes.clear();
+    m.break_even = false;
+    m.mesh_check = true;
+    const AnalysisResult fine = analyse(m);
+    for (const auto& w : fine.warnings) CHECK(w.rfind("mesh check:", 0) != 0);
+    CHECK(std::abs(fine.pooled().lambda_refined - fine.pooled().lambda) <
+          1e-4 * fine.pooled().lambda);
+    m.mesh.points = 6;
+    m.mesh.rule = kernel::QuadratureRule::midpoint;
+    const AnalysisResult coarse = analyse(m);
+    REQUIRE_FALSE(std::isnan(coarse.pooled().lambda_refined));
+    CHECK(std::abs(coarse.pooled().lambda_refined - coarse.pooled().lambda) >
+          1e-4 * coarse.pooled().lambda);
+    std::size_t mesh_warnings = 0;
+    for (const auto& w : coarse.warnings)
+        if (w.rfind("mesh check:", 0) == 0) ++mesh_warnings;
+    CHECK(mesh_warnings == 1);  // one warning listing the kernels
+}
