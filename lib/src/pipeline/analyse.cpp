@@ -248,7 +248,8 @@ void reducibility_warnings(const AnalysisResult& result, std::vector<std::string
         std::string renewing, others;
         for (const auto& c : shown->classes) {
             std::string& list = c.role == "self_renewing" ? renewing : others;
-            list += (list.empty() ? "" : ", ") + c.class_name + (c.role == "self_renewing" ? "" : " (" + c.role + ")");
+            list += (list.empty() ? "" : ", ") + c.class_name +
+                    (c.role == "self_renewing" ? "" : " (" + c.role + ")");
         }
         const auto num = [](double x) { return core::number_text(x, 5); };
         std::string w = "reducible kernel (" + setting + "; kernel(s) " + kernels + "): ";
@@ -383,7 +384,8 @@ AnalysisResult analyse(const PreparedModel& model) {
         // w and v are zero elsewhere), so that λ, the sensitivities and Δλ describe the part
         // of the population that replaces itself.
         const analysis::Reducibility structure = analysis::reducibility(op);
-        if (structure.components.reducible()) reducible_log.add(op, structure, rates[i]->label, "baseline");
+        if (structure.components.reducible())
+            reducible_log.add(op, structure, rates[i]->label, "baseline");
         triples.push_back(structure.leading_renewing
                               ? analysis::restricted_triple(
                                     op, structure.components.members[*structure.leading_renewing])
@@ -525,8 +527,8 @@ AnalysisResult analyse(const PreparedModel& model) {
             RecruitmentParameters r = baseline_recruitment(model, i);
             r.arrival = a.fractions;
             r.establishment = scaled_establishment(model, r.establishment, scenario);
-            const double lambda =
-                lambda_of(mesh, curves[i], r, eviction, {}, &reducible_log, "scenario: " + scenario.name);
+            const double lambda = lambda_of(mesh, curves[i], r, eviction, {}, &reducible_log,
+                                            "scenario: " + scenario.name);
             const double delta = lambda - out.kernels[i].lambda;
             if (i == pooled_index) {
                 s.establishment_pooled = r.establishment;
@@ -607,7 +609,8 @@ AnalysisResult analyse(const PreparedModel& model) {
                 q.establishment[bare] = e_bare;
                 const bool end = e_bare == 0.0 || e_bare == 1.0;
                 try {
-                    return lambda_of(mesh, pooled_curves, q, eviction, {}, end ? &reducible_log : nullptr,
+                    return lambda_of(mesh, pooled_curves, q, eviction, {},
+                                     end ? &reducible_log : nullptr,
                                      "break-even " + form + ", e_bare = " +
                                          (e_bare == 0.0 ? "0" : "1"));
                 } catch (const analysis::EigenError& e) {

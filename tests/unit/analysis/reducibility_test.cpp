@@ -128,7 +128,7 @@ TEST_CASE("reducibility: an IPM with a microsite that receives no recruits",
     KernelDescription d;
     for (std::size_t m = 0; m < 2; ++m) {
         ContinuousClass c;
-        c.name = m == 0 ? "A" : "B";
+        c.name.assign(1, m == 0 ? 'A' : 'B');  // a string literal here: false -Wrestrict
         c.microsite = m;
         const double s = m == 0 ? 0.5 : 0.95;
         c.survival = [s](double) { return s; };
