@@ -77,3 +77,18 @@ safesite_cli_case(NAME eval-fixed-example-matrices
                   STDOUT "wrote [0-9]+ files"
                   REMOVE "${CMAKE_CURRENT_BINARY_DIR}/eval-out/matrices/pooled_P.mtx"
                   FILES "${CMAKE_CURRENT_BINARY_DIR}/eval-out/matrices/pooled_P.mtx|${CMAKE_CURRENT_BINARY_DIR}/eval-out/matrices/pooled_F.mtx|${CMAKE_CURRENT_BINARY_DIR}/eval-out/matrices/mesh.csv|${CMAKE_CURRENT_BINARY_DIR}/eval-out/matrices/kernels.csv|${CMAKE_CURRENT_BINARY_DIR}/eval-out/matrices/scenario-1-every-seed-on-bare-gravel_F.mtx|${CMAKE_CURRENT_BINARY_DIR}/eval-out/life_history_at_birth.csv|${CMAKE_CURRENT_BINARY_DIR}/eval-out/life_history_by_size.csv")
+
+# Safeguards (issue 10 §2). The demo scenario "every seed on bare gravel" makes the kernels
+# reducible: λ is that of the self-renewing gravel part, 0.93745 for the pooled kernel (an
+# independent re-implementation reported the same 0.93745 in issue 10; the whole kernel's
+# dominant eigenvalue 0.95173 is the cushion plants' survival–growth rate), and a warning says
+# so. A mesh cut at log size 3 (20 cm) loses 79 % of the growth mass of the largest plants
+# (measured on the demo on 2026-12-02) and must warn about it.
+safesite_cli_case(NAME demo-reducible-scenario
+                  ARGS "run|models/ridge.toml|--out|${CMAKE_CURRENT_BINARY_DIR}/demo-reducible-out|--replicates|0" STATUS 0
+                  STDOUT "every seed on bare gravel +pooled +0[.]9374 "
+                  STDERR "warning: reducible kernel [(]scenario: every seed on bare gravel;[^\n]*kernel pooled 0[.]93745 [(]the whole kernel's dominant eigenvalue is 0[.]95173[)]")
+safesite_cli_case(NAME narrow-mesh-warns
+                  ARGS "run|tests/cli/inputs/ridge-narrow-mesh.toml|--out|${CMAKE_CURRENT_BINARY_DIR}/narrow-mesh-out" STATUS 0
+                  STDERR "warning: eviction: kernel [0-9]+, class [a-z]+: 79[.]4 % of the growth mass of plants of size [^\n]*above the mesh upper bound[^\n]*raise \\[mesh\\] upper"
+                  FILES "${CMAKE_CURRENT_BINARY_DIR}/narrow-mesh-out/eviction.csv|${CMAKE_CURRENT_BINARY_DIR}/narrow-mesh-out/mesh_check.csv|${CMAKE_CURRENT_BINARY_DIR}/narrow-mesh-out/reducibility.csv")

@@ -2,17 +2,22 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 #include <memory>
 #include <optional>
+#include <string>
+#include <vector>
 
 #include "safesite/analysis/eigen_error.hpp"
 #include "safesite/analysis/eigen_triple.hpp"
 #include "safesite/analysis/kernel_sensitivity.hpp"
 #include "safesite/analysis/lambda_derivative.hpp"
 #include "safesite/analysis/life_history.hpp"
+#include "safesite/analysis/reducibility.hpp"
 #include "safesite/analysis/stochastic_growth.hpp"
 #include "safesite/arrival/arrival_chain.hpp"
 #include "safesite/error.hpp"
+#include "core/number_text.hpp"
 #include "safesite/kernel/kernel_operator.hpp"
 #include "safesite/pipeline/kernel_builder.hpp"
 
@@ -48,12 +53,224 @@ bool has_juveniles(const KernelLayout& layout, const Eigen::VectorXd& nodes) {
            nodes[0] < layout.juvenile_size_below;
 }
 
+// A class as the output tables name it: the microsite, with " (first-year)" for a first-year
+// class.
+std::string class_name(const KernelLayout& layout, std::size_t k) {
+    const std::string& site = layout.microsites[k % layout.microsites.size()];
+    const bool first_year =
+        layout.juvenile == JuvenileMode::seedling_class && k >= layout.microsites.size();
+    return first_year ? site + " (first-year)" : site;
+}
+
+// The reducible kernels met while analysing, kept for the `reducibility` table and warnings.
+struct ReducibleLog {
+    const KernelLayout* layout = nullptr;
+    std::vector<ReducibleKernel>* out = nullptr;
+
+    void add(const kernel::KernelOperator& op, const analysis::Reducibility& r,
+             const std::string& kernel, const std::string& setting) const {
+        ReducibleKernel k;
+        k.kernel = kernel;
+        k.setting = setting;
+        k.lambda_kernel = r.kernel_lambda;
+        k.lambda_renewing = r.renewing_lambda;
+        for (std::size_t g = 0; g < op.group_count(); ++g) {
+            const std::size_t c = r.components.component[g];
+            k.classes.push_back({g < op.class_count() ? class_name(*layout, g) : op.group_name(g),
+                                 c + 1, analysis::to_string(r.components.role[c]),
+                                 r.component_lambda[c]});
+        }
+        out->push_back(std::move(k));
+    }
+};
+
+// λ of a kernel (docs/methods/kernel.md, "Reducible kernels"): the dominant eigenvalue when
+// the class graph is strongly connected; otherwise λ of the self-renewing part (0 when no
+// part renews itself), and the kernel is logged when `log` is given.
+double kernel_lambda(const kernel::KernelOperator& op, const ReducibleLog* log,
+                     const std::string& kernel, const std::string& setting) {
+    const analysis::Reducibility r = analysis::reducibility(op);
+    if (!r.components.reducible()) return analysis::dominant_eigen(op).lambda;
+    if (log) log->add(op, r, kernel, setting);
+    return r.renewing_lambda;
+}
+
 double lambda_of(const kernel::Mesh& mesh, const CurvesPtr& curves,
                  const RecruitmentParameters& recruitment, kernel::EvictionPolicy eviction,
-                 SurvivalChange change = {}) {
+                 SurvivalChange change = {}, const ReducibleLog* log = nullptr,
+                 const std::string& setting = "") {
     const kernel::KernelOperator op(mesh,
                                     describe_kernel(curves, recruitment, eviction, change));
-    return analysis::dominant_eigen(op).lambda;
+    return kernel_lambda(op, log, curves->label, setting);
+}
+
+// Share of a normal N(mean, sd²) above `upper` and below `lower`.
+std::pair<double, double> normal_tails(double mean, double sd, double lower, double upper) {
+    return {0.5 * std::erfc((upper - mean) / (sd * std::sqrt(2.0))),
+            0.5 * std::erfc((mean - lower) / (sd * std::sqrt(2.0)))};
+}
+
+// The largest growth share off the mesh of every class over the observed parent sizes (the
+// mesh nodes from the last one at or below the smallest observed size to the first one at or
+// above the largest), and the recruit-size share of every microsite.
+std::vector<EvictionPeak> eviction_peaks(const kernel::KernelOperator& op,
+                                         const KernelCurves& curves, const MeshSettings& mesh) {
+    const Eigen::VectorXd& z = curves.nodes;
+    Eigen::Index first = 0, last = z.size() - 1;
+    if (std::isfinite(mesh.observed_lower) && std::isfinite(mesh.observed_upper)) {
+        while (first + 1 < z.size() && z[first + 1] <= mesh.observed_lower) ++first;
+        while (last > first && z[last - 1] >= mesh.observed_upper) --last;
+    }
+    std::vector<EvictionPeak> out;
+    for (std::size_t c = 0; c < op.class_count(); ++c) {
+        const Eigen::VectorXd& evicted = op.evicted_growth(c);
+        Eigen::Index at = first;
+        for (Eigen::Index j = first; j <= last; ++j)
+            if (evicted[j] > evicted[at]) at = j;
+        const ClassCurves& cc = curves.classes[c];
+        const auto [above, below] =
+            normal_tails(cc.growth_mean[at], cc.growth_sd[at], mesh.lower, mesh.upper);
+        out.push_back({c, "growth", z[at], std::max(0.0, evicted[at]), above >= below});
+    }
+    for (std::size_t m = 0; m < op.microsite_count(); ++m) {
+        const auto mi = static_cast<Eigen::Index>(m);
+        const auto [above, below] = normal_tails(curves.recruit_mean[mi], curves.recruit_sd[mi],
+                                                 mesh.lower, mesh.upper);
+        out.push_back({op.entry_class(m), "recruit_size",
+                       std::numeric_limits<double>::quiet_NaN(), op.evicted_recruits(m),
+                       above >= below});
+    }
+    return out;
+}
+
+std::string percent(double share) { return core::number_text(100.0 * share, 3) + " %"; }
+
+// One warning per part (growth, recruit size) whose share off the mesh exceeds the threshold
+// in some kernel and class: it names the worst kernel, class, size and share, and the other
+// classes over the threshold (with one growth model for every class they often all are).
+void eviction_warnings(const AnalysisResult& result, const MeshSettings& mesh,
+                       std::vector<std::string>& warnings) {
+    const auto t = mesh.size_transform;
+    auto size_text = [&](double z) {
+        std::string out = core::number_text(census::invert(t, z), 4);
+        if (t != census::SizeTransform::none)
+            out += " (" + core::number_text(z, 4) + " on the kernel scale)";
+        return out;
+    };
+    for (const char* part : {"growth", "recruit_size"}) {
+        const KernelResult* worst_kernel = nullptr;
+        const EvictionPeak* worst = nullptr;
+        std::size_t over = 0;
+        std::vector<std::size_t> classes;
+        for (const KernelResult& k : result.kernels)
+            for (const EvictionPeak& e : k.eviction) {
+                if (e.part != part || !(e.share > mesh.eviction_warning)) continue;
+                ++over;
+                if (std::find(classes.begin(), classes.end(), e.class_index) == classes.end())
+                    classes.push_back(e.class_index);
+                if (!worst || e.share > worst->share) {
+                    worst = &e;
+                    worst_kernel = &k;
+                }
+            }
+        if (!worst) continue;
+        const bool growth = worst->part == "growth";
+        std::string others;
+        for (std::size_t c : classes)
+            if (c != worst->class_index)
+                others += (others.empty() ? "" : ", ") + class_name(result.layout, c);
+        std::string w = "eviction: kernel " + worst_kernel->label + ", class " +
+                        class_name(result.layout, worst->class_index) + ": " +
+                        percent(worst->share) + " of the " +
+                        (growth ? "growth mass of plants of size " + size_text(worst->size)
+                                : std::string("recruit-size mass")) +
+                        " falls " +
+                        (worst->above ? "above the mesh upper bound U = "
+                                      : "below the mesh lower bound L = ") +
+                        size_text(worst->above ? mesh.upper : mesh.lower);
+        if (over > 1)
+            w += "; " + std::to_string(over) + " kernel-class pairs lose more than " +
+                 percent(mesh.eviction_warning) +
+                 (others.empty() ? std::string() : " (also classes " + others + ")");
+        w += ". Widen the mesh: " + std::string(worst->above ? "raise [mesh] upper"
+                                                             : "lower [mesh] lower") +
+             " (or, when the bounds are derived from the data, raise [mesh] margin); table "
+             "eviction has every share";
+        warnings.push_back(std::move(w));
+    }
+}
+
+// Relative change of λ between n and 2n mesh points above which a warning is given.
+constexpr double k_mesh_tolerance = 1e-4;
+
+void mesh_warnings(const AnalysisResult& result, std::vector<std::string>& warnings) {
+    std::string listed;
+    double worst = 0.0;
+    std::size_t points = 0;
+    for (const KernelResult& k : result.kernels) {
+        if (std::isnan(k.lambda_refined)) continue;
+        const double change = std::abs(k.lambda_refined - k.lambda) / k.lambda;
+        if (!(change > k_mesh_tolerance)) continue;
+        listed += (listed.empty() ? "" : ", ") + k.label + " " + core::number_text(change, 2);
+        worst = std::max(worst, change);
+        points = k.points;
+    }
+    if (listed.empty()) return;
+    warnings.push_back("mesh check: λ changes by more than " +
+                       core::number_text(k_mesh_tolerance, 2) + " (relative) between " +
+                       std::to_string(points) + " and " + std::to_string(2 * points) +
+                       " mesh points in kernel(s) " + listed +
+                       "; use more points ([mesh] points, e.g. " + std::to_string(2 * points) +
+                       ") before trusting the digits of λ");
+}
+
+// One warning per setting (baseline, a scenario, …) with reducible kernels, with the numbers
+// of its pooled kernel when there is one (else its first kernel).
+void reducibility_warnings(const AnalysisResult& result, std::vector<std::string>& warnings) {
+    std::vector<std::string> settings;
+    // Warn where the answer changes: λ of the self-renewing part differs from the whole
+    // kernel's dominant eigenvalue, or nothing renews itself (the table lists every case).
+    auto matters = [](const ReducibleKernel& r) {
+        return !(r.lambda_renewing > 0.0) ||
+               std::abs(r.lambda_renewing - r.lambda_kernel) > 1e-9 * r.lambda_kernel;
+    };
+    for (const auto& r : result.reducible)
+        if (matters(r) &&
+            std::find(settings.begin(), settings.end(), r.setting) == settings.end())
+            settings.push_back(r.setting);
+    for (const auto& setting : settings) {
+        const ReducibleKernel* shown = nullptr;
+        std::string kernels;
+        for (const auto& r : result.reducible) {
+            if (r.setting != setting || !matters(r)) continue;
+            kernels += (kernels.empty() ? "" : ", ") + r.kernel;
+            if (!shown || r.kernel == "pooled") shown = &r;
+        }
+        std::string renewing, others;
+        for (const auto& c : shown->classes) {
+            std::string& list = c.role == "self_renewing" ? renewing : others;
+            list += (list.empty() ? "" : ", ") + c.class_name +
+                    (c.role == "self_renewing" ? "" : " (" + c.role + ")");
+        }
+        const auto num = [](double x) { return core::number_text(x, 5); };
+        std::string w = "reducible kernel (" + setting + "; kernel(s) " + kernels + "): ";
+        if (renewing.empty()) {
+            w += "no class renews itself (no reproduction leads back into any class); ";
+            w += setting == "baseline"
+                     ? "λ of kernel " + shown->kernel + " is the dominant eigenvalue " +
+                           num(shown->lambda_kernel) +
+                           ", the survival of existing plants alone"
+                     : "λ is taken as 0 (kernel " + shown->kernel +
+                           ": the existing plants decline at " + num(shown->lambda_kernel) + ")";
+        } else {
+            w += "the classes " + others +
+                 " are not part of the self-renewing life cycle; λ is that of the self-renewing "
+                 "part (" + renewing + "): kernel " + shown->kernel + " " +
+                 num(shown->lambda_renewing) + " (the whole kernel's dominant eigenvalue is " +
+                 num(shown->lambda_kernel) + ")";
+        }
+        warnings.push_back(w + "; see table reducibility");
+    }
 }
 
 // dλ/dθ = ⟨v, (∂A/∂θ) w⟩ with ∂A/∂θ given as an operator on the same mesh.
@@ -212,16 +429,27 @@ AnalysisResult analyse(const PreparedModel& model) {
     std::vector<std::unique_ptr<kernel::KernelOperator>> ops;
     std::vector<analysis::EigenTriple> triples;
     triples.reserve(rates.size());
+    const ReducibleLog reducible_log{&model.layout, &out.reducible};
     for (std::size_t i = 0; i < rates.size(); ++i) {
         const RecruitmentParameters recruitment = baseline_recruitment(model, i);
         ops.push_back(std::make_unique<kernel::KernelOperator>(
             mesh, describe_kernel(curves[i], recruitment, eviction)));
         const kernel::KernelOperator& op = *ops.back();
-        triples.push_back(analysis::dominant_eigen(op));
+        // A reducible kernel is analysed on its leading self-renewing component (its λ, w, v;
+        // w and v are zero elsewhere), so that λ, the sensitivities and Δλ describe the part
+        // of the population that replaces itself.
+        const analysis::Reducibility structure = analysis::reducibility(op);
+        if (structure.components.reducible())
+            reducible_log.add(op, structure, rates[i]->label, "baseline");
+        triples.push_back(structure.leading_renewing
+                              ? analysis::restricted_triple(
+                                    op, structure.components.members[*structure.leading_renewing])
+                              : analysis::dominant_eigen(op));
         const analysis::EigenTriple& triple = triples.back();
 
         KernelResult k;
         k.label = rates[i]->label;
+        k.reducible = structure.components.reducible();
         k.lambda = triple.lambda;
         // One LU of I − P for R0 and life expectancy, reused by the life-cycle moments.
         std::optional<analysis::LifeCycleRates> cycle_rates;
@@ -242,6 +470,7 @@ AnalysisResult analyse(const PreparedModel& model) {
             k.max_evicted_growth.push_back(op.evicted_growth(c).maxCoeff());
         for (std::size_t m = 0; m < op.microsite_count(); ++m)
             k.evicted_recruits.push_back(op.evicted_recruits(m));
+        k.eviction = eviction_peaks(op, *curves[i], model.mesh);
         {
             // Elasticity block sums E = K ∘ s / λ, per part (docs/methods/kernel.md).
             const analysis::KernelSensitivity ks(op, triple);
@@ -275,7 +504,9 @@ AnalysisResult analyse(const PreparedModel& model) {
                 const double lambda =
                     change == 0.0 ? triple.lambda
                                   : lambda_of(mesh, curves[i], recruitment, eviction,
-                                              SurvivalChange{1.0 + change});
+                                              SurvivalChange{1.0 + change}, &reducible_log,
+                                              "juvenile survival x" +
+                                                  core::number_text(1.0 + change, 6));
                 k.perturbation.push_back({change, lambda});
             }
         }
@@ -356,7 +587,8 @@ AnalysisResult analyse(const PreparedModel& model) {
             RecruitmentParameters r = baseline_recruitment(model, i);
             r.arrival = a.fractions;
             r.establishment = scaled_establishment(model, r.establishment, scenario);
-            const double lambda = lambda_of(mesh, curves[i], r, eviction);
+            const double lambda = lambda_of(mesh, curves[i], r, eviction, {}, &reducible_log,
+                                            "scenario: " + scenario.name);
             const double delta = lambda - out.kernels[i].lambda;
             if (i == pooled_index) {
                 s.establishment_pooled = r.establishment;
@@ -435,8 +667,12 @@ AnalysisResult analyse(const PreparedModel& model) {
             auto lambda_of_e = [&](double e_bare) {
                 RecruitmentParameters q = r;
                 q.establishment[bare] = e_bare;
+                const bool end = e_bare == 0.0 || e_bare == 1.0;
                 try {
-                    return lambda_of(mesh, pooled_curves, q, eviction);
+                    return lambda_of(mesh, pooled_curves, q, eviction, {},
+                                     end ? &reducible_log : nullptr,
+                                     "break-even " + form + ", e_bare = " +
+                                         (e_bare == 0.0 ? "0" : "1"));
                 } catch (const analysis::EigenError& e) {
                     // With e_bare = 0 and every seed moved there, nothing reproduces and the
                     // microsites decouple: the spectral radius is shared by several blocks.
@@ -463,6 +699,10 @@ AnalysisResult analyse(const PreparedModel& model) {
         }
         if (all.size() > 1) solve("all", all);
     }
+
+    eviction_warnings(out, model.mesh, out.warnings);
+    mesh_warnings(out, out.warnings);
+    reducibility_warnings(out, out.warnings);
     return out;
 }
 

@@ -112,7 +112,11 @@ struct Context {
     std::vector<std::string> keys;
 };
 
-std::vector<double> replicate(const Context& ctx, std::size_t r, std::uint64_t seed) {
+// `reducible` is set when a baseline kernel (census year or pooled) of the replicate is
+// reducible (its λ is then that of the self-renewing part, as in analyse()); scenario kernels
+// that are reducible by design are reported by the run itself.
+std::vector<double> replicate(const Context& ctx, std::size_t r, std::uint64_t seed,
+                              bool& reducible) {
     core::Variates rng(seed, r + 1);
 
     // Census: plant histories within cohorts, each copy under its own tag.
@@ -165,6 +169,8 @@ std::vector<double> replicate(const Context& ctx, std::size_t r, std::uint64_t s
     m.decompose_years = false;
     m.life_cycle = false;
     const AnalysisResult a = analyse(m);
+    reducible = std::any_of(a.reducible.begin(), a.reducible.end(),
+                            [](const ReducibleKernel& k) { return k.setting == "baseline"; });
 
     std::map<std::string, double> got;
     for (const auto& [key, value] : quantities(f, a)) got[key_text(key)] = value;
@@ -250,11 +256,14 @@ BootstrapResult bootstrap(const spec::ModelSpec& model, const RunResult& baselin
     const std::size_t B = options.replicates;
     out.values.assign(B, std::vector<double>(ctx.keys.size(), k_nan));
     std::vector<std::string> errors(B);
+    std::vector<char> reducible(B, 0);  // char, not bool: written by several threads
     std::atomic<std::size_t> next{0};
     auto work = [&] {
         for (std::size_t r = next++; r < B; r = next++) {
             try {
-                out.values[r] = replicate(ctx, r, options.seed);
+                bool red = false;
+                out.values[r] = replicate(ctx, r, options.seed, red);
+                reducible[r] = red ? 1 : 0;
             } catch (const std::exception& e) {
                 errors[r] = e.what();
             }
@@ -278,6 +287,15 @@ BootstrapResult bootstrap(const spec::ModelSpec& model, const RunResult& baselin
     if (out.failed > 0)
         out.warnings.push_back(std::to_string(out.failed) + " of " + std::to_string(B) +
                                " bootstrap replicates failed and are left out of the intervals");
+    const auto n_reducible =
+        static_cast<std::size_t>(std::count(reducible.begin(), reducible.end(), char{1}));
+    if (n_reducible > 0)
+        out.warnings.push_back(
+            std::to_string(n_reducible) + " of " + std::to_string(B) +
+            " bootstrap replicates had a reducible baseline kernel (a census-year or pooled kernel "
+            "whose classes do not all lead to each other); their λ is that of the self-renewing "
+            "part "
+            "(docs/methods/kernel.md, \"Reducible kernels\")");
 
     const double p_lo = (1.0 - options.level) / 2.0, p_hi = (1.0 + options.level) / 2.0;
     for (std::size_t q = 0; q < out.intervals.size(); ++q) {

@@ -2,8 +2,11 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
+#include <set>
 #include <string>
 
+#include "core/number_text.hpp"
 #include "pipeline/detail/rate_fit.hpp"
 #include "pipeline/detail/spec_settings.hpp"
 #include "safesite/census/transition_data.hpp"
@@ -81,6 +84,76 @@ void add_arrival_rows(const ArrivalFit& a, FitResult& out) {
     }
 }
 
+// The range of the parent sizes seen in the census (sizes at t of the transitions).
+void observed_range(const census::TransitionData& td, MeshSettings& mesh) {
+    double lo = std::numeric_limits<double>::infinity(), hi = -lo;
+    for (double x : td.transitions.numeric("size"))
+        if (std::isfinite(x)) {
+            lo = std::min(lo, x);
+            hi = std::max(hi, x);
+        }
+    if (std::isfinite(lo)) {
+        mesh.observed_lower = lo;
+        mesh.observed_upper = hi;
+    }
+}
+
+// No observed size (at t, at t + 1, of a recruit) may lie outside a mesh bound the model file
+// gives: such plants would be moved to the mesh edge or lost (docs/errors.md, "sizes outside
+// the mesh"). Derived bounds always hold every observed size. Checked before any fitting.
+void check_sizes_inside(const spec::ModelSpec& model, const census::TransitionData& td) {
+    if (model.mesh.allow_sizes_outside) return;
+    const double lower = model.mesh.lower.value_or(-std::numeric_limits<double>::infinity());
+    const double upper = model.mesh.upper.value_or(std::numeric_limits<double>::infinity());
+    struct Side {
+        bool upper;
+        std::size_t records = 0;
+        std::set<std::string> plants;
+        double extreme = 0.0;
+    };
+    Side below{false, 0, {}, std::numeric_limits<double>::infinity()};
+    Side above{true, 0, {}, -std::numeric_limits<double>::infinity()};
+    auto scan = [&](const stats::Table& t, const char* column) {
+        if (t.rows() == 0) return;
+        const auto& x = t.numeric(column);
+        const std::vector<std::string>* plant =
+            t.has("plant") ? &t.categorical("plant").values : nullptr;
+        for (std::size_t i = 0; i < x.size(); ++i) {
+            if (!std::isfinite(x[i])) continue;
+            Side* side = x[i] < lower ? &below : x[i] > upper ? &above : nullptr;
+            if (!side) continue;
+            ++side->records;
+            side->plants.insert(plant ? (*plant)[i] : std::string(column) + std::to_string(i));
+            side->extreme = side->upper ? std::max(side->extreme, x[i])
+                                        : std::min(side->extreme, x[i]);
+        }
+    };
+    scan(td.transitions, "size");
+    scan(td.transitions, "size_next");
+    scan(td.recruits, "size");
+    for (const Side* side : {&above, &below}) {
+        if (side->records == 0) continue;
+        const auto t = model.size_transform;
+        const double bound = side->upper ? upper : lower;
+        auto data_scale = [&](double z) { return core::number_text(census::invert(t, z), 6); };
+        const std::string key = side->upper ? "mesh.upper" : "mesh.lower";
+        SourceLocation at = side->upper ? model.mesh.upper_at : model.mesh.lower_at;
+        at.file = model.file.string();
+        at.key = key;
+        throw SpecError(
+            at, "'" + key + "' = " + core::number_text(bound, 6) + " leaves out observed sizes: " +
+                    std::to_string(side->records) + " size record(s) of " +
+                    std::to_string(side->plants.size()) + " plant(s) lie " +
+                    (side->upper ? "above" : "below") + " it (the most extreme " +
+                    core::number_text(side->extreme, 6) + " on the kernel scale, " +
+                    data_scale(side->extreme) + " on the scale of the data); " +
+                    (side->upper ? "raise" : "lower") + " '" + key + "' beyond " +
+                    core::number_text(side->extreme, 6) +
+                    ", leave it out to derive it from the data, or set [mesh] "
+                    "allow_sizes_outside = true to keep the mesh");
+    }
+}
+
 }  // namespace
 
 FitResult fit_given(const spec::ModelSpec& model) {
@@ -138,6 +211,7 @@ FitResult fit(const spec::ModelSpec& model, const census::Census& c,
     if (td.transitions.rows() == 0)
         throw DataError({c.file(), 0, 0, "year"},
                         "the census has no transitions between consecutive census years");
+    check_sizes_inside(model, td);
     const std::vector<std::string> years = td.transitions.categorical("year").levels;
     const KernelLayout layout = detail::kernel_layout(model, years);
 
@@ -186,6 +260,8 @@ FitResult fit(const spec::ModelSpec& model, const census::Census& c,
                              ? derive_mesh_bounds(td.transitions, td.recruits, model.mesh.margin)
                              : std::pair<double, double>{0.0, 0.0};
     m.mesh = detail::mesh_settings(model.mesh, derived);
+    m.mesh.size_transform = model.size_transform;
+    observed_range(td, m.mesh);
 
     // Arrival fractions.
     if (model.arrival.method == spec::ArrivalMethod::fractions) {

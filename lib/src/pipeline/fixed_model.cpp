@@ -116,6 +116,7 @@ PreparedModel prepare_fixed(const spec::ModelSpec& model, const FixedModelOption
     mesh.lower = bounds.first;
     mesh.upper = bounds.second;
     out.mesh = detail::mesh_settings(mesh, bounds);
+    out.mesh.size_transform = model.size_transform;
 
     for (const auto& year : options.years) {
         const auto shifts_of = [&](const std::string& y) {

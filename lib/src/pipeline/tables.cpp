@@ -205,6 +205,49 @@ TidyTable assumptions_table(const AnalysisResult& r) {
     return t;
 }
 
+// The largest share of growth (per class) and recruit-size (per microsite, under its entry
+// class) mass off the mesh, per kernel (docs/formats.md, `eviction`).
+TidyTable eviction_table(const AnalysisResult& r) {
+    TidyTable t{"eviction", {"kernel", "class", "part", "size", "share", "side"}, {}};
+    for (const auto& k : r.kernels)
+        for (const auto& e : k.eviction)
+            t.rows.push_back({txt(k.label), txt(class_label(r.layout, e.class_index)),
+                              txt(e.part), num(e.size), num(e.share),
+                              txt(e.above ? "above" : "below")});
+    return t;
+}
+
+// λ with n and 2n mesh points (docs/formats.md, `mesh_check`).
+TidyTable mesh_check_table(const AnalysisResult& r) {
+    TidyTable t{"mesh_check",
+                {"kernel", "points", "lambda", "points_refined", "lambda_refined",
+                 "relative_difference"},
+                {}};
+    for (const auto& k : r.kernels) {
+        if (std::isnan(k.lambda_refined)) continue;
+        t.rows.push_back({txt(k.label), report::integer(static_cast<std::int64_t>(k.points)),
+                          num(k.lambda), report::integer(static_cast<std::int64_t>(2 * k.points)),
+                          num(k.lambda_refined),
+                          num(std::abs(k.lambda_refined - k.lambda) / k.lambda)});
+    }
+    return t;
+}
+
+// Every class of every reducible kernel with its component (docs/formats.md, `reducibility`).
+TidyTable reducibility_table(const AnalysisResult& r) {
+    TidyTable t{"reducibility",
+                {"kernel", "setting", "class", "component", "role", "lambda_component",
+                 "lambda_renewing", "lambda_kernel"},
+                {}};
+    for (const auto& k : r.reducible)
+        for (const auto& c : k.classes)
+            t.rows.push_back({txt(k.kernel), txt(k.setting), txt(c.class_name),
+                              report::integer(static_cast<std::int64_t>(c.component)),
+                              txt(c.role), num(c.lambda_component), num(k.lambda_renewing),
+                              num(k.lambda_kernel)});
+    return t;
+}
+
 }  // namespace
 
 TidyTable decomposition_table(const AnalysisResult& r) {
@@ -235,7 +278,9 @@ std::vector<report::TidyTable> analysis_tables(const AnalysisResult& result) {
             life_at_birth_table(result), life_by_size_table(result),
             arrival_table(result),      scenario_table(result),
             sensitivity_table(result),  break_even_table(result),
-            diagnostics_table(result),  assumptions_table(result)};
+            diagnostics_table(result),  assumptions_table(result),
+            eviction_table(result),     mesh_check_table(result),
+            reducibility_table(result)};
 }
 
 report::TidyTable establishment_table(const EstablishmentEstimate& estimate) {

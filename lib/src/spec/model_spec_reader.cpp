@@ -928,7 +928,8 @@ DataSpec read_data(const TableReader& r, const std::filesystem::path& file) {
 }
 
 MeshSpec read_mesh(const TableReader& r) {
-    r.allow({"points", "rule", "eviction", "lower", "upper", "margin"});
+    r.allow({"points", "rule", "eviction", "lower", "upper", "margin", "eviction_warning",
+             "allow_sizes_outside"});
     MeshSpec mesh;
     if (auto n = r.integer("points")) {
         if (*n < 2)
@@ -951,6 +952,13 @@ MeshSpec read_mesh(const TableReader& r) {
         r.require_at_least("margin", *m, 0.0);
         mesh.margin = *m;
     }
+    if (auto w = r.number("eviction_warning")) {
+        r.require_at_least("eviction_warning", *w, 0.0);
+        mesh.eviction_warning = *w;
+    }
+    if (auto b = r.boolean("allow_sizes_outside")) mesh.allow_sizes_outside = *b;
+    mesh.lower_at = r.location("lower");
+    mesh.upper_at = r.location("upper");
     return mesh;
 }
 

@@ -101,7 +101,7 @@ TEST_CASE("run: lambda per year and pooled, perturbation, scenario, diagnostics"
     for (const char* n : {"coefficients", "model_comparison", "establishment", "lambda",
                           "perturbation", "stable_structure", "reproductive_value", "arrival",
                           "scenarios", "sensitivities", "break_even", "diagnostics",
-                          "assumptions"})
+                          "assumptions", "eviction", "mesh_check", "reducibility"})
         CHECK(names.count(n) == 1);
 }
 

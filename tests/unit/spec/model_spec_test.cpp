@@ -39,6 +39,10 @@ TEST_CASE("a fitted model file is read into typed values", "[spec][unit]") {
     CHECK(m.mesh.lower.value() == -1.0);
     CHECK(m.mesh.upper.value() == 4.0);  // an integer is accepted where a number is expected
     CHECK(m.mesh.margin == 0.2);
+    CHECK(m.mesh.eviction_warning == 0.02);
+    CHECK(m.mesh.allow_sizes_outside);
+    CHECK(m.mesh.upper_at.key == "mesh.upper");
+    CHECK(m.mesh.upper_at.line > 0);
 
     CHECK(m.microsites.labels == std::vector<std::string>{"gravel", "cushion", "tussock"});
     CHECK(m.microsites.bare_index == 0);
@@ -100,6 +104,8 @@ TEST_CASE("an experiments model file is read into typed values", "[spec][unit]")
     CHECK(m.mesh.points == 100);
     CHECK(m.mesh.rule == QuadratureRule::midpoint);
     CHECK(m.mesh.eviction == EvictionPolicy::boundary);
+    CHECK(m.mesh.eviction_warning == 0.01);
+    CHECK_FALSE(m.mesh.allow_sizes_outside);
     CHECK_FALSE(m.mesh.lower.has_value());
     CHECK(m.mesh.margin == 0.1);
     CHECK(m.rate("flowering").link == "cloglog");

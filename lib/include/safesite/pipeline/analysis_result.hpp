@@ -48,6 +48,37 @@ struct LifeCycleResult {
     std::vector<AtBirth> at_birth;  ///< one per microsite with recruits on the mesh
 };
 
+/// The largest share of growth (or recruit-size) mass that falls outside the mesh, for one
+/// class of one kernel (docs/methods/kernel.md, "Eviction").
+struct EvictionPeak {
+    std::size_t class_index = 0;  ///< continuous class (layout order)
+    std::string part;             ///< "growth" or "recruit_size"
+    /// Parent size (kernel scale) at which the growth share is largest, over the mesh nodes in
+    /// the observed size range; NaN for recruit size (it has no parent size).
+    double size = std::numeric_limits<double>::quiet_NaN();
+    double share = 0.0;           ///< the share of mass off [L, U] (before survival)
+    bool above = true;            ///< most of that mass lies above U (else below L)
+};
+
+/// One class of a reducible kernel: its strongly connected component, the component's role
+/// and λ (analysis/reducibility.hpp).
+struct ClassComponent {
+    std::string class_name;        ///< "gravel", "gravel (first-year)", or a stage name
+    std::size_t component = 0;     ///< component number, upstream first (1-based)
+    std::string role;              ///< self_renewing | dependent | declining
+    double lambda_component = 0.0; ///< spectral radius of the kernel restricted to it
+};
+
+/// A kernel whose class graph is not strongly connected: every class with its component.
+struct ReducibleKernel {
+    std::string kernel;   ///< census year label or "pooled"
+    std::string setting;  ///< "baseline", "scenario: <name>", "juvenile survival x<f>",
+                          ///< "break-even <form>, e_bare = <0|1>"
+    double lambda_kernel = 0.0;    ///< spectral radius of the whole kernel
+    double lambda_renewing = 0.0;  ///< λ of the self-renewing part (0: nothing renews)
+    std::vector<ClassComponent> classes;
+};
+
 /// One kernel (a census year t → t+1, or "pooled") and what was computed on it.
 struct KernelResult {
     static constexpr double nan = std::numeric_limits<double>::quiet_NaN();
@@ -69,6 +100,12 @@ struct KernelResult {
 
     std::vector<double> max_evicted_growth;  ///< per class: max over parents of evicted mass
     std::vector<double> evicted_recruits;    ///< per microsite: recruit-size mass off the mesh
+    /// Per class: the largest growth share off the mesh over observed parent sizes; per
+    /// microsite: the recruit-size share off the mesh (entered under the entry class).
+    std::vector<EvictionPeak> eviction;
+    /// The class graph is not strongly connected; `lambda` is then λ of the self-renewing
+    /// part and w, v are those of its leading component (zero elsewhere).
+    bool reducible = false;
 
     Eigen::VectorXd arrival;          ///< a used
     Eigen::VectorXd establishment;    ///< e used
@@ -159,6 +196,9 @@ struct AnalysisResult {
     std::vector<YearContribution> year_contributions;
     /// With two or more year kernels and PreparedModel::stochastic_years > 0.
     std::optional<StochasticResult> stochastic;
+    /// Every reducible kernel met: baseline kernels, scenarios, juvenile-survival changes and
+    /// the ends of the break-even search (e_bare = 0 and 1).
+    std::vector<ReducibleKernel> reducible;
     std::vector<std::string> assumptions;
     std::vector<std::string> warnings;
 

@@ -8,6 +8,7 @@
 
 #include <cstddef>
 #include <cstdint>
+#include <limits>
 #include <map>
 #include <optional>
 #include <string>
@@ -16,6 +17,7 @@
 #include <Eigen/Core>
 
 #include "safesite/arrival/chain_parameters.hpp"
+#include "safesite/census/size_transform.hpp"
 #include "safesite/kernel/kernel_description.hpp"
 #include "safesite/kernel/mesh.hpp"
 #include "safesite/pipeline/establishment.hpp"
@@ -30,6 +32,14 @@ struct MeshSettings {
     std::size_t points = 100;  ///< n ≥ 2
     kernel::QuadratureRule rule = kernel::QuadratureRule::midpoint;
     kernel::EvictionPolicy eviction = kernel::EvictionPolicy::boundary;
+    /// Warn when growth or recruit-size mass off the mesh exceeds this share (≥ 0).
+    double eviction_warning = 0.01;
+    /// Range of the parent sizes seen in the census (kernel scale); NaN when there are no data
+    /// (eviction is then judged over the whole mesh).
+    double observed_lower = std::numeric_limits<double>::quiet_NaN();
+    double observed_upper = std::numeric_limits<double>::quiet_NaN();
+    /// The size transform, to state sizes in messages on the scale of the data.
+    census::SizeTransform size_transform = census::SizeTransform::none;
 };
 
 /// One `[[scenario]]` as values: changes to the arrival chain (or direct fractions) and to

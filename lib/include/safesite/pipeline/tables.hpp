@@ -13,7 +13,7 @@ namespace safesite::pipeline {
 
 /// The analysis tables, in this order: `lambda`, `perturbation`, `stable_structure`,
 /// `reproductive_value`, `arrival`, `scenarios`, `sensitivities`, `break_even`,
-/// `diagnostics`, `assumptions`.
+/// `diagnostics`, `assumptions`, `eviction`, `mesh_check`, `reducibility`.
 std::vector<report::TidyTable> analysis_tables(const AnalysisResult& result);
 
 /// The `establishment` table: year (t or "pooled"), microsite, seeds, arrival, recruits,

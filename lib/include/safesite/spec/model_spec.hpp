@@ -57,6 +57,13 @@ struct MeshSpec {
     std::optional<double> upper;  ///< given U; else data maximum + margin·range (L < U)
     double margin = 0.1;          ///< ≥ 0, used only for derived bounds
     SourceLocation points_at;     ///< where `points` is given (line 0: the default)
+    /// Warn when a kernel loses more than this share of growth or recruit-size mass off the
+    /// mesh at an observed size (≥ 0, default 0.01).
+    double eviction_warning = 0.01;
+    /// Observed sizes outside given bounds are an error unless this is true.
+    bool allow_sizes_outside = false;
+    SourceLocation lower_at;  ///< where `lower` is written (the [mesh] table when absent)
+    SourceLocation upper_at;  ///< where `upper` is written (the [mesh] table when absent)
 };
 
 /// `[microsites]`: the labels in the order used everywhere (vectors indexed by microsite),

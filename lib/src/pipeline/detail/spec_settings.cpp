@@ -13,6 +13,7 @@ MeshSettings mesh_settings(const spec::MeshSpec& mesh, std::pair<double, double>
     out.lower = mesh.lower ? *mesh.lower : derived.first;
     out.upper = mesh.upper ? *mesh.upper : derived.second;
     out.points = mesh.points;
+    out.eviction_warning = mesh.eviction_warning;
     out.rule = mesh.rule == spec::QuadratureRule::midpoint ? kernel::QuadratureRule::midpoint
                                                            : kernel::QuadratureRule::gauss_legendre;
     out.eviction = mesh.eviction == spec::EvictionPolicy::boundary
