@@ -7,6 +7,7 @@
 #include <CLI/CLI.hpp>
 
 #include "common.hpp"
+#include "safesite/io/staged_folder.hpp"
 #include "safesite/pipeline/run.hpp"
 #include "safesite/report/output_folder.hpp"
 #include "safesite/report/text_summary.hpp"
@@ -24,6 +25,7 @@ struct EvalOptions {
 
 int run_eval(const EvalOptions& o, const Streams& io) {
     const spec::ModelSpec model = load_model(o.model);
+    if (!o.out.empty()) check_output_folder(o.out, model);  // before any work: fail early
     progress(io, "building the kernels");
     const pipeline::RunResult result = pipeline::evaluate_fixed(model);
     const auto& a = result.analysis;
@@ -62,8 +64,9 @@ int run_eval(const EvalOptions& o, const Streams& io) {
     }
     io.out << report::render_summary({growth, kernel_elas, elas}, info);
     if (!o.out.empty()) {
-        const auto written =
-            report::write_output_folder(o.out, pipeline::run_tables(result), info);
+        io::StagedFolder folder(o.out, report::output_folder_rules(input_files(model)));
+        report::write_output_folder(folder.path(), pipeline::run_tables(result), info);
+        const auto written = folder.commit();
         io.out << "wrote " << written.size() << " files to " << o.out << "\n";
     }
     return 0;
