@@ -65,8 +65,10 @@ void install_signal_handlers() {
     action.sa_flags = SA_RESTART;  // the writing goes on to its next safe point
     for (int signal : {SIGINT, SIGTERM, SIGHUP}) {
         struct sigaction previous;
-        // A signal ignored by the parent (e.g. `nohup`) stays ignored.
-        if (::sigaction(signal, nullptr, &previous) == 0 && previous.sa_handler == SIG_IGN)
+        // SIGHUP ignored by the parent (`nohup`) stays ignored. SIGINT is handled even when
+        // ignored at start (a shell ignores it for `cmd &`), so a stop always cleans up.
+        if (signal == SIGHUP && ::sigaction(signal, nullptr, &previous) == 0 &&
+            previous.sa_handler == SIG_IGN)
             continue;
         ::sigaction(signal, &action, nullptr);
     }

@@ -71,3 +71,10 @@ safesite_cli_case(NAME simulate-experiments
                   FILES "${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments/trapping.csv|${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments/retention.csv|${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments/truth-arrival.csv|${CMAKE_CURRENT_BINARY_DIR}/simulate-experiments/census.csv")
 safesite_cli_case(NAME eval-fixed-example ARGS "eval|models/fixed-example.toml" STATUS 0
                   STDOUT "pooled +[0-9.]+")
+
+# Interrupted and killed runs (SIGINT, SIGTERM, SIGKILL) leave the previous output folder
+# unchanged and no partial folder after the next run; files follow the umask.
+add_test(NAME cli:interrupted-run-keeps-previous-folder
+         COMMAND sh ${CMAKE_CURRENT_SOURCE_DIR}/cli/interrupt.sh $<TARGET_FILE:safesite>
+                 ${PROJECT_SOURCE_DIR} ${CMAKE_CURRENT_BINARY_DIR}/interrupt)
+set_tests_properties(cli:interrupted-run-keeps-previous-folder PROPERTIES LABELS cli TIMEOUT 120)
