@@ -78,3 +78,9 @@ add_test(NAME cli:interrupted-run-keeps-previous-folder
          COMMAND sh ${CMAKE_CURRENT_SOURCE_DIR}/cli/interrupt.sh $<TARGET_FILE:safesite>
                  ${PROJECT_SOURCE_DIR} ${CMAKE_CURRENT_BINARY_DIR}/interrupt)
 set_tests_properties(cli:interrupted-run-keeps-previous-folder PROPERTIES LABELS cli TIMEOUT 120)
+
+# Each warning is printed once (a run whose fits warn; no replicates).
+add_test(NAME cli:warnings-printed-once
+         COMMAND sh ${CMAKE_CURRENT_SOURCE_DIR}/cli/warnings_once.sh $<TARGET_FILE:safesite>
+                 ${PROJECT_SOURCE_DIR} ${CMAKE_CURRENT_BINARY_DIR}/warnings-once)
+set_tests_properties(cli:warnings-printed-once PROPERTIES LABELS cli TIMEOUT 300)
