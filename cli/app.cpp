@@ -1,7 +1,9 @@
 #include "app.hpp"
 
+#include <signal.h>
 #include <unistd.h>
 
+#include <cstring>
 #include <exception>
 #include <iostream>
 #include <ostream>
@@ -12,6 +14,7 @@
 #include "options.hpp"
 #include "safesite/error.hpp"
 #include "safesite/io/near_match.hpp"
+#include "safesite/io/interruption.hpp"
 #include "safesite/version.hpp"
 #include "verbs.hpp"
 
@@ -59,7 +62,47 @@ std::string parse_error_message(const CLI::ParseError& e, const CLI::App* verb,
     return e.what();
 }
 
+std::string signal_name(int signal) {
+    switch (signal) {
+        case SIGINT: return "SIGINT";
+        case SIGTERM: return "SIGTERM";
+        case SIGHUP: return "SIGHUP";
+        default: return "signal " + std::to_string(signal);
+    }
+}
+
+/// SIGINT, SIGTERM, SIGHUP: record the stop (io::request_stop). With no temporary of safesite
+/// on disk (fitting, bootstrap) there is nothing to clean: say so and end at once with
+/// 128 + signal. Otherwise the writers stop at their next safe point, remove their
+/// temporaries and run() returns 128 + signal. Only async-signal-safe calls here.
+void on_stop_signal(int signal) {
+    if (!io::request_stop(signal)) return;
+    const char* text = signal == SIGINT    ? "safesite: error: interrupted by SIGINT\n"
+                       : signal == SIGTERM ? "safesite: error: interrupted by SIGTERM\n"
+                                           : "safesite: error: interrupted by a signal\n";
+    const ssize_t ignored = ::write(STDERR_FILENO, text, std::strlen(text));
+    (void)ignored;
+    ::_exit(128 + signal);
+}
+
 }  // namespace
+
+void install_signal_handlers() {
+    struct sigaction action;
+    std::memset(&action, 0, sizeof action);
+    action.sa_handler = on_stop_signal;
+    ::sigemptyset(&action.sa_mask);
+    action.sa_flags = SA_RESTART;  // the writing goes on to its next safe point
+    for (int signal : {SIGINT, SIGTERM, SIGHUP}) {
+        struct sigaction previous;
+        // SIGHUP ignored by the parent (`nohup`) stays ignored. SIGINT is handled even when
+        // ignored at start (a shell ignores it for `cmd &`), so a stop always cleans up.
+        if (signal == SIGHUP && ::sigaction(signal, nullptr, &previous) == 0 &&
+            previous.sa_handler == SIG_IGN)
+            continue;
+        ::sigaction(signal, &action, nullptr);
+    }
+}
 
 void progress(const Streams& io, const std::string& message) {
     if (io.progress) io.err << "safesite: " << message << "\n";
@@ -121,7 +164,21 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream& e
     }
 
     try {
-        return chosen->action(io);
+        const int status = chosen->action(io);
+        // A stop requested after the last safe point: the output is complete, but the run was
+        // asked to stop, and says so.
+        if (const int signal = io::stop_signal(); signal != 0) {
+            std::string text = "interrupted by ";
+            text += signal_name(signal);
+            text += " after the output was written in full";
+            error_line(err, text);
+            return exit_interrupted + signal;
+        }
+        return status;
+    } catch (const io::Interrupted& e) {
+        error_line(err, std::string(e.what()) + "; nothing was written (a previous output "
+                        "folder is as it was)");
+        return exit_interrupted + e.signal();
     } catch (const UsageError& e) {
         error_line(err, e.what());
         err << "Usage: " << chosen->usage << "\n";

@@ -1,6 +1,8 @@
 #include "common.hpp"
 
+#include "safesite/io/staged_folder.hpp"
 #include "safesite/report/caution.hpp"
+#include "safesite/report/output_folder.hpp"
 
 namespace safesite::cli {
 
@@ -35,6 +37,17 @@ std::vector<report::TidyTable> pick_tables(const std::vector<report::TidyTable>&
 std::filesystem::path output_dir(const std::string& out_option, const spec::ModelSpec& model) {
     if (!out_option.empty()) return out_option;
     return model.output.dir;
+}
+
+std::vector<std::filesystem::path> input_files(const spec::ModelSpec& model) {
+    std::vector<std::filesystem::path> files = {model.file};
+    for (const auto& f : {model.data.census, model.data.trapping, model.data.retention})
+        if (f) files.push_back(*f);
+    return files;
+}
+
+void check_output_folder(const std::filesystem::path& dir, const spec::ModelSpec& model) {
+    io::StagedFolder::check(dir, report::output_folder_rules(input_files(model)));
 }
 
 }  // namespace safesite::cli

@@ -32,4 +32,11 @@ std::vector<report::TidyTable> pick_tables(const std::vector<report::TidyTable>&
 /// The output folder: `--out` when given, else the model file's `[output] dir`.
 std::filesystem::path output_dir(const std::string& out_option, const spec::ModelSpec& model);
 
+/// The files a run on `model` reads: the model file and the data files it names.
+std::vector<std::filesystem::path> input_files(const spec::ModelSpec& model);
+
+/// Fail early (InputError, exit 3, naming the folder) when `dir` cannot be the output folder of
+/// a run on `model`: call before any fitting (io::StagedFolder::check).
+void check_output_folder(const std::filesystem::path& dir, const spec::ModelSpec& model);
+
 }  // namespace safesite::cli

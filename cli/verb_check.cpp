@@ -15,10 +15,13 @@ namespace {
 
 struct CheckOptions {
     std::string model;
+    std::string out;
 };
 
 int run_check(const CheckOptions& o, const Streams& io) {
     const spec::ModelSpec model = load_model(o.model);
+    // The folder `run` would write: it must be creatable or replaceable, and writable.
+    check_output_folder(output_dir(o.out, model), model);
     progress(io, "reading and validating the census");
     const pipeline::CheckResult result = pipeline::check(model);
     // Every problem is reported at once (issue 4 §1): errors stop with exit 3, warnings go to
@@ -46,7 +49,11 @@ Verb add_check_verb(CLI::App& app) {
         "check", "Validate a model file and its census data; summarise the census (plants, "
                  "years, transitions, recruits per microsite) and list every problem found.");
     cmd->add_option("MODEL", o->model, "model file (TOML, docs/formats.md)")->required();
-    return {cmd, "safesite check MODEL", [o](const Streams& io) { return run_check(*o, io); }};
+    cmd->add_option("--out", o->out,
+                    "output folder to check as 'run' would write it (default: [output] dir of "
+                    "the model file)")
+        ->type_name("DIR");
+    return {cmd, "safesite check MODEL [--out DIR]", [o](const Streams& io) { return run_check(*o, io); }};
 }
 
 }  // namespace safesite::cli

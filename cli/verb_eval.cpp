@@ -9,6 +9,7 @@
 #include "common.hpp"
 #include "options.hpp"
 #include "safesite/pipeline/kernel_matrices.hpp"
+#include "safesite/io/staged_folder.hpp"
 #include "safesite/pipeline/run.hpp"
 #include "safesite/report/output_folder.hpp"
 #include "safesite/report/text_summary.hpp"
@@ -26,6 +27,7 @@ struct EvalOptions {
 
 int run_eval(const EvalOptions& o, const Streams& io) {
     const spec::ModelSpec model = load_model(o.model);
+    if (!o.out.empty()) check_output_folder(o.out, model);  // before any work: fail early
     progress(io, "building the kernels");
     const pipeline::RunResult result = pipeline::evaluate_fixed(model);
     const auto& a = result.analysis;
@@ -64,10 +66,11 @@ int run_eval(const EvalOptions& o, const Streams& io) {
     }
     io.out << report::render_summary({growth, kernel_elas, elas}, info);
     if (!o.out.empty()) {
-        auto written = report::write_output_folder(o.out, pipeline::run_tables(result), info);
+        io::StagedFolder folder(o.out, report::output_folder_rules(input_files(model)));
+        report::write_output_folder(folder.path(), pipeline::run_tables(result), info);
         if (model.output.matrices)
-            for (auto& p : pipeline::write_kernel_matrices(o.out, result.fit.model, a))
-                written.push_back(std::move(p));
+            pipeline::write_kernel_matrices(folder.path(), result.fit.model, a);
+        const auto written = folder.commit();
         io.out << "wrote " << written.size() << " files to " << o.out << "\n";
     }
     return 0;

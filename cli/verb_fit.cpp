@@ -5,6 +5,7 @@
 #include <CLI/CLI.hpp>
 
 #include "common.hpp"
+#include "safesite/io/staged_folder.hpp"
 #include "safesite/pipeline/fit.hpp"
 #include "safesite/report/output_folder.hpp"
 #include "safesite/report/text_summary.hpp"
@@ -21,6 +22,7 @@ struct FitOptions {
 
 int run_fit(const FitOptions& o, const Streams& io) {
     const spec::ModelSpec model = load_model(o.model);
+    if (!o.out.empty()) check_output_folder(o.out, model);  // before any fitting: fail early
     progress(io, "reading the data and fitting the vital rates");
     const pipeline::FitResult result = pipeline::fit(model);
     const auto tables = pipeline::fit_tables(result);
@@ -32,7 +34,9 @@ int run_fit(const FitOptions& o, const Streams& io) {
         pick_tables(tables, {"coefficients", "model_comparison", "establishment", "hazards",
                              "trapping", "arrival_chain"}), info, text);
     if (!o.out.empty()) {
-        const auto written = report::write_output_folder(o.out, tables, info);
+        io::StagedFolder folder(o.out, report::output_folder_rules(input_files(model)));
+        report::write_output_folder(folder.path(), tables, info);
+        const auto written = folder.commit();
         io.out << "wrote " << written.size() << " files to " << o.out << "\n";
     }
     return 0;

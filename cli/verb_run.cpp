@@ -9,6 +9,7 @@
 
 #include "common.hpp"
 #include "options.hpp"
+#include "safesite/io/staged_folder.hpp"
 #include "safesite/pipeline/bootstrap.hpp"
 #include "safesite/pipeline/kernel_matrices.hpp"
 #include "safesite/pipeline/run.hpp"
@@ -44,12 +45,14 @@ int run_run(const RunOptions& o, const Streams& io) {
                              std::to_string(least));
         model.uncertainty.replicates = *o.replicates;
     }
+    const std::filesystem::path dir = output_dir(o.out, model);
+    check_output_folder(dir, model);  // before any fitting: fail early
     progress(io, "fitting the vital rates and building the kernels");
     const pipeline::RunResult result = pipeline::run(model);
     auto tables = pipeline::run_tables(result);
-    std::vector<std::string> warnings = result.fit.warnings;
-    warnings.insert(warnings.end(), result.analysis.warnings.begin(),
-                    result.analysis.warnings.end());
+    // The analysis's warnings begin with those of the fit (PreparedModel::warnings): taking
+    // both printed each fit warning twice.
+    std::vector<std::string> warnings = result.analysis.warnings;
     if (model.uncertainty.replicates > 0) {
         progress(io, "bootstrap: " + std::to_string(model.uncertainty.replicates) +
                          " replicates (refit and reanalyse each)");
@@ -71,16 +74,18 @@ int run_run(const RunOptions& o, const Streams& io) {
         seed = model.uncertainty.seed;
     const auto info =
         run_info("run", o.model, model, seed, result.analysis.assumptions, warnings);
-    const std::filesystem::path dir = output_dir(o.out, model);
     progress(io, "writing " + dir.string());
-    auto written = report::write_output_folder(dir, tables, info);
+    // All or nothing: everything goes into a temporary folder beside `dir`, which replaces
+    // `dir` as a whole at the end (io::StagedFolder).
+    io::StagedFolder folder(dir, report::output_folder_rules(input_files(model)));
+    report::write_output_folder(folder.path(), tables, info);
     // Figures drawn once, for their files and for the HTML report.
     const std::vector<report::Figure> figures = report::all_figures(tables);
-    for (auto& p : report::write_figures(dir, figures)) written.push_back(std::move(p));
-    written.push_back(report::write_html_report(dir, tables, info, figures));
+    report::write_figures(folder.path(), figures);
+    report::write_html_report(folder.path(), tables, info, figures);
     if (model.output.matrices)
-        for (auto& p : pipeline::write_kernel_matrices(dir, result.fit.model, result.analysis))
-            written.push_back(std::move(p));
+        pipeline::write_kernel_matrices(folder.path(), result.fit.model, result.analysis);
+    const auto written = folder.commit();
     report::TextOptions text;
     text.max_rows = 40;
     // The terminal shows the scenarios of the pooled kernel; every year is in the files.

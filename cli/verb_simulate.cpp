@@ -14,8 +14,7 @@
 #include "options.hpp"
 #include "safesite/arrival/retention_data.hpp"
 #include "safesite/arrival/trapping_data.hpp"
-#include "safesite/error.hpp"
-#include "safesite/io/atomic_file.hpp"
+#include "safesite/io/staged_folder.hpp"
 #include "safesite/pipeline/analyse.hpp"
 #include "safesite/pipeline/fixed_model.hpp"
 #include "safesite/report/output_folder.hpp"
@@ -57,23 +56,9 @@ report::TidyTable true_lambda(const spec::ModelSpec& model, const sim::CensusSim
     return t;
 }
 
-/// Write text as `<dir>/<name>` atomically (errors as InputError with key "out", like
-/// report::write_csv).
-void write_text(const std::filesystem::path& dir, const std::string& name,
-                const std::string& content) {
-    const std::filesystem::path path = dir / name;
-    try {
-        io::ensure_directory(dir);
-        io::write_file_atomic(path, content);
-    } catch (const InputError&) {
-        throw;
-    } catch (const Error& e) {
-        throw InputError({path.string(), 0, 0, "out"}, e.what());
-    }
-}
-
 int run_simulate(SimulateOptions o, const Streams& io) {
     const spec::ModelSpec model = load_model(o.truth);
+    check_output_folder(o.out, model);  // before any work: fail early
     o.sim.coordinates = !o.no_coordinates;
     progress(io, fmt::format("simulating {} plants over {} census years", o.sim.plants,
                              o.sim.years));
@@ -101,11 +86,16 @@ int run_simulate(SimulateOptions o, const Streams& io) {
         written_tables.push_back(true_lambda(model, s, experiments));
         shown.push_back(written_tables.back());
     }
-    for (const auto& t : written_tables) report::write_csv(o.out, t);
+    // All or nothing: a temporary folder beside `--out` replaces it as a whole at the end.
+    io::StagedFolder folder(o.out, report::output_folder_rules(input_files(model)));
+    for (const auto& t : written_tables) report::write_csv(folder.path(), t);
     if (experiments) {
-        write_text(o.out, "trapping.csv", arrival::format_trapping_csv(experiments->trapping));
-        write_text(o.out, "retention.csv", arrival::format_retention_csv(experiments->retention));
+        report::write_output_file(folder.path() / "trapping.csv",
+                                  arrival::format_trapping_csv(experiments->trapping));
+        report::write_output_file(folder.path() / "retention.csv",
+                                  arrival::format_retention_csv(experiments->retention));
     }
+    folder.commit();
     const auto info = run_info("simulate", o.truth, model, o.sim.seed, {}, {});
     io.out << report::render_summary(shown, info);
     io.out << "wrote " << s.census.rows.size() << " census rows";
@@ -141,7 +131,7 @@ Verb add_simulate_verb(CLI::App& app) {
                 "random seed")
         ->type_name("S")
         ->required();
-    cmd->add_option("--out", o->out, "folder to write the files to (created when absent)")
+    cmd->add_option("--out", o->out, "folder to write the files to (created, or replaced as a whole: docs/formats.md)")
         ->type_name("DIR")
         ->required();
     add_integer(cmd, "--first-year", o->sim.first_year, 1, 9999,

@@ -92,3 +92,16 @@ safesite_cli_case(NAME narrow-mesh-warns
                   ARGS "run|tests/cli/inputs/ridge-narrow-mesh.toml|--out|${CMAKE_CURRENT_BINARY_DIR}/narrow-mesh-out" STATUS 0
                   STDERR "warning: eviction: kernel [0-9]+, class [a-z]+: 79[.]4 % of the growth mass of plants of size [^\n]*above the mesh upper bound[^\n]*raise \\[mesh\\] upper"
                   FILES "${CMAKE_CURRENT_BINARY_DIR}/narrow-mesh-out/eviction.csv|${CMAKE_CURRENT_BINARY_DIR}/narrow-mesh-out/mesh_check.csv|${CMAKE_CURRENT_BINARY_DIR}/narrow-mesh-out/reducibility.csv")
+
+# Interrupted and killed runs (SIGINT, SIGTERM, SIGKILL) leave the previous output folder
+# unchanged and no partial folder after the next run; files follow the umask.
+add_test(NAME cli:interrupted-run-keeps-previous-folder
+         COMMAND sh ${CMAKE_CURRENT_SOURCE_DIR}/cli/interrupt.sh $<TARGET_FILE:safesite>
+                 ${PROJECT_SOURCE_DIR} ${CMAKE_CURRENT_BINARY_DIR}/interrupt)
+set_tests_properties(cli:interrupted-run-keeps-previous-folder PROPERTIES LABELS cli TIMEOUT 120)
+
+# Each warning is printed once (a run whose fits warn; no replicates).
+add_test(NAME cli:warnings-printed-once
+         COMMAND sh ${CMAKE_CURRENT_SOURCE_DIR}/cli/warnings_once.sh $<TARGET_FILE:safesite>
+                 ${PROJECT_SOURCE_DIR} ${CMAKE_CURRENT_BINARY_DIR}/warnings-once)
+set_tests_properties(cli:warnings-printed-once PROPERTIES LABELS cli TIMEOUT 300)

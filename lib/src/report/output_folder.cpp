@@ -1,6 +1,7 @@
 #include "safesite/report/output_folder.hpp"
 
 #include <cmath>
+#include <iterator>
 #include <set>
 
 #include <nlohmann/json.hpp>
@@ -153,6 +154,20 @@ std::vector<fs::path> write_output_folder(const fs::path& dir,
     write_output_file(s, json);
     written.push_back(s);
     return written;
+}
+
+io::StagedFolderRules output_folder_rules(std::vector<fs::path> inputs) {
+    io::StagedFolderRules rules;
+    rules.inputs = std::move(inputs);
+    rules.legacy_marker = "summary.json";
+    rules.legacy_entry = [](const std::string& rel) {
+        const fs::path p(rel);
+        const auto parts = std::distance(p.begin(), p.end());
+        if (parts == 1)
+            return p.extension() == ".csv" || rel == "summary.json" || rel == "report.html";
+        return parts == 2 && *p.begin() == "figures" && p.extension() == ".svg";
+    };
+    return rules;
 }
 
 }  // namespace safesite::report

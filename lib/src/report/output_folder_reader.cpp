@@ -11,6 +11,7 @@
 #include <nlohmann/json.hpp>
 
 #include "safesite/error.hpp"
+#include "safesite/io/staged_folder.hpp"
 #include "safesite/report/html_report.hpp"
 
 namespace safesite::report {
@@ -207,7 +208,14 @@ OutputFolder read_output_folder(const fs::path& dir) {
 
 fs::path rerender_html_report(const fs::path& dir) {
     const OutputFolder folder = read_output_folder(dir);
-    return write_html_report(dir, folder.tables, folder.info, folder.figures);
+    const fs::path written = write_html_report(dir, folder.tables, folder.info, folder.figures);
+    // A folder that lists its files lists the report too, so the next run may replace it.
+    try {
+        io::StagedFolder::record(dir, "report.html");
+    } catch (const Error& e) {
+        throw InputError({(dir / io::StagedFolder::k_manifest).string(), 0, 0, "out"}, e.what());
+    }
+    return written;
 }
 
 }  // namespace safesite::report

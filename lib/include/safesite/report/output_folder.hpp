@@ -10,6 +10,7 @@
 #include <string>
 #include <vector>
 
+#include "safesite/io/staged_folder.hpp"
 #include "safesite/report/run_info.hpp"
 #include "safesite/report/tidy_table.hpp"
 
@@ -32,8 +33,6 @@ std::string to_summary_json(const std::vector<TidyTable>& tables, const RunInfo&
 /// cannot be created or the file cannot be written.
 std::filesystem::path write_csv(const std::filesystem::path& dir, const TidyTable& table);
 
-/// Write the output folder: creates `dir` (and parents) when absent, writes every table as
-/// `<dir>/<name>.csv`, then `<dir>/summary.json`. Existing files of the same names are
 /// Write one file of an output folder atomically (io::write_file_atomic); a failure becomes an
 /// InputError naming the path with key "out" (the output folder is an input of the command).
 void write_output_file(const std::filesystem::path& path, const std::string& content);
@@ -42,11 +41,21 @@ void write_output_file(const std::filesystem::path& path, const std::string& con
 /// \throws InputError (key "out") naming the folder when it cannot be created.
 void ensure_output_folder(const std::filesystem::path& dir);
 
-/// replaced; other files in `dir` are left alone. Returns the paths written, in order.
+/// Write the tables into `dir`: creates `dir` (and parents) when absent, writes every table as
+/// `<dir>/<name>.csv`, then `<dir>/summary.json`. Existing files of the same names are
+/// replaced; other files in `dir` are left alone. Returns the paths written, in order. A run
+/// writes into the temporary folder of an io::StagedFolder (output_folder_rules()) and
+/// commits it, so that the output folder is replaced all or nothing.
 /// \throws UsageError for invalid or duplicate table names; InputError (key "out") when the
 ///         folder cannot be created or a file cannot be written.
 std::vector<std::filesystem::path> write_output_folder(const std::filesystem::path& dir,
                                                        const std::vector<TidyTable>& tables,
                                                        const RunInfo& info);
+
+/// The rules of io::StagedFolder for an output folder of a run with these input files (model
+/// file, data files): a folder written before `.safesite-output` existed is recognised by its
+/// summary.json and may be replaced when it holds only files safesite writes (`*.csv`,
+/// `summary.json`, `report.html`, `figures/*.svg`).
+io::StagedFolderRules output_folder_rules(std::vector<std::filesystem::path> inputs);
 
 }  // namespace safesite::report

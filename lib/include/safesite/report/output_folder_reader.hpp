@@ -30,8 +30,8 @@ struct OutputFolder {
 ///         read.
 OutputFolder read_output_folder(const std::filesystem::path& dir);
 
-/// Read the folder and write `<dir>/report.html` from it (write_html_report()); returns the
-/// path. \throws as read_output_folder() and write_html_report().
+/// Read the folder and write `<dir>/report.html` from it (write_html_report()), atomically,
+/// and add it to the folder's list of files (io::StagedFolder::record); returns the path. \throws as read_output_folder() and write_html_report().
 std::filesystem::path rerender_html_report(const std::filesystem::path& dir);
 
 }  // namespace safesite::report
