@@ -172,7 +172,16 @@ TEST_CASE("the HTML report is well formed, self-contained and reproducible", "[r
     CHECK(html.find("<script") == std::string::npos);
     CHECK(html.find("<link") == std::string::npos);
     CHECK(html.find("src=") == std::string::npos);
-    CHECK(html.find("href") == std::string::npos);
+    // Links only within the page: every href is "#id" of an element of the page.
+    for (std::size_t i = html.find("href=\""); i != std::string::npos;
+         i = html.find("href=\"", i + 1)) {
+        const std::size_t end = html.find('"', i + 6);
+        const std::string target = html.substr(i + 6, end - i - 6);
+        INFO(target);
+        REQUIRE(target.size() > 1);
+        CHECK(target[0] == '#');
+        CHECK(html.find("id=\"" + target.substr(1) + "\"") != std::string::npos);
+    }
     CHECK(html.find("url(") == std::string::npos);
     CHECK(html.find("@import") == std::string::npos);
     CHECK(count(html, "http") == count(html, "xmlns=\"http://www.w3.org/2000/svg\""));
@@ -196,9 +205,11 @@ TEST_CASE("the report puts the caution near the top and the sections in reading 
     const std::string html = render_html_report(tables, example_info(), all_figures(tables));
     const std::size_t caution = html.find(k_caution);
     REQUIRE(caution != std::string::npos);
+    // Warnings right under the caution when there are any, then the contents.
     const std::vector<std::string> order = {
-        "<header>",           "id=\"caution\"",     "id=\"key-results\"", "id=\"figures\"",
-        "id=\"tables\"",      "id=\"assumptions\"", "id=\"warnings\"",    "id=\"files\""};
+        "<header>",          "id=\"caution\"",     "id=\"warnings\"",    "id=\"contents\"",
+        "id=\"key-results\"", "id=\"figures\"",     "id=\"tables\"",      "id=\"assumptions\"",
+        "id=\"files\""};
     std::size_t last = 0;
     for (const auto& s : order) {
         INFO(s);
@@ -218,6 +229,12 @@ TEST_CASE("the report puts the caution near the top and the sections in reading 
     RunInfo no_seed = example_info();
     no_seed.seed.reset();
     CHECK(render_html_report(tables, no_seed, {}).find("<dt>seed</dt>") == std::string::npos);
+    // Without warnings, no warnings section, and the header says so.
+    RunInfo calm = example_info();
+    calm.warnings.clear();
+    const std::string h2 = render_html_report(tables, calm, {});
+    CHECK(h2.find("id=\"warnings\"") == std::string::npos);
+    CHECK(h2.find("<dt>warnings</dt><dd>none</dd>") != std::string::npos);
 }
 
 TEST_CASE("key results: pooled lambda with its interval, stochastic lambda, arrival, scenarios",
@@ -282,25 +299,47 @@ TEST_CASE("figures are inlined with their caption; unsafe SVG is left out", "[re
     const std::string html = render_html_report(tables, example_info(), figures);
     for (const auto& f : figures) {
         INFO(f.name);
-        std::string svg = f.svg;
-        while (!svg.empty() && svg.back() == '\n') svg.pop_back();
-        CHECK(html.find(svg) != std::string::npos);
+        // Inlined up to the drawn caption, which the report shows once, as HTML text.
+        const std::size_t cap = f.svg.find("<g class=\"caption\"");
+        REQUIRE(cap != std::string::npos);
+        const std::size_t body = f.svg.find("<title>");
+        CHECK(html.find(f.svg.substr(body, cap - body)) != std::string::npos);
         CHECK(html.find("<code>figures/" + f.name + ".svg</code>)</figcaption>") !=
               std::string::npos);
+        // The caption's first drawn line is shown once in the report (in the figcaption;
+        // the SVG's <desc> elements are not shown).
+        const std::size_t t0 = f.svg.find('>', f.svg.find("<text", cap)) + 1;
+        const std::string first_line = f.svg.substr(t0, f.svg.find("</text>", t0) - t0);
+        std::string shown = html;
+        for (std::size_t d = shown.find("<desc>"); d != std::string::npos;
+             d = shown.find("<desc>", d))
+            shown.erase(d, shown.find("</desc>", d) + 7 - d);
+        CHECK(count(shown, first_line) == 1);
     }
-    CHECK(html.find("Figure 1.</strong> Population growth rate") != std::string::npos);
+    CHECK(html.find("Figure 1.</strong> \u03bb per census-year kernel") != std::string::npos);
+    // The inlined drawing is cut where the caption began: height and viewBox.
+    const std::string& first = figures.front().svg;
+    const std::size_t ty = first.find("translate(0 ") + 12;
+    const std::string y = first.substr(ty, first.find(')', ty) - ty);
+    CHECK(html.find("height=\"" + y + "\" viewBox=\"0 0 720.00 " + y + "\"") !=
+          std::string::npos);
 
-    const Figure bad{"evil", "<svg xmlns=\"http://www.w3.org/2000/svg\"><script>x()</script>"
-                             "</svg>\n"};
-    const Figure declared{"declared", "<?xml version=\"1.0\"?>\n<svg><title>T &amp; U</title>"
-                                      "</svg>\n"};
+    const Figure bad{"evil",
+                     "<svg xmlns=\"http://www.w3.org/2000/svg\"><script>x()</script></svg>\n",
+                     ""};
+    const Figure declared{"declared",
+                          "<?xml version=\"1.0\"?>\n<svg><title>T &amp; U</title>"
+                          "<desc>D &amp; E</desc></svg>\n",
+                          ""};
     const std::string h2 = render_html_report(tables, example_info(), {bad, declared});
     CHECK(h2.find("<script") == std::string::npos);
     CHECK(h2.find("figures/evil.svg") != std::string::npos);
     CHECK(h2.find("left out") != std::string::npos);
     CHECK(h2.find("<?xml") == std::string::npos);
-    CHECK(h2.find("<svg><title>T &amp; U</title></svg>") != std::string::npos);
-    CHECK(h2.find("Figure 2.</strong> T &amp; U.") != std::string::npos);
+    CHECK(h2.find("<svg><title>T &amp; U</title><desc>D &amp; E</desc></svg>") !=
+          std::string::npos);
+    CHECK(h2.find("Figure 2.</strong> D &amp; E") != std::string::npos);
+    CHECK(h2.find("Figure 2. T &amp; U") != std::string::npos);  // its entry in the contents
     CHECK(tag_balance_error(h2).empty());
 }
 
