@@ -7,6 +7,7 @@
 #include <CLI/CLI.hpp>
 
 #include "common.hpp"
+#include "progress_line.hpp"
 #include "safesite/pipeline/bootstrap.hpp"
 #include "safesite/pipeline/run.hpp"
 #include "safesite/report/figures.hpp"
@@ -45,7 +46,10 @@ int run_run(const RunOptions& o, const Streams& io) {
         b.seed = model.uncertainty.seed;
         b.level = model.uncertainty.level;
         b.threads = o.threads;
+        ProgressLine line(io, "bootstrap replicates");
+        b.progress = [&line](std::size_t done, std::size_t total) { line.update(done, total); };
         const pipeline::BootstrapResult boot = pipeline::bootstrap(model, result, b);
+        line.finish();
         for (auto& t : pipeline::bootstrap_tables(boot)) tables.push_back(std::move(t));
         warnings.insert(warnings.end(), boot.warnings.begin(), boot.warnings.end());
     }

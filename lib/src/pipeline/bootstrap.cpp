@@ -5,6 +5,7 @@
 #include <cmath>
 #include <limits>
 #include <map>
+#include <mutex>
 #include <thread>
 
 #include "safesite/census/census.hpp"
@@ -250,12 +251,18 @@ BootstrapResult bootstrap(const spec::ModelSpec& model, const RunResult& baselin
     out.values.assign(B, std::vector<double>(ctx.keys.size(), k_nan));
     std::vector<std::string> errors(B);
     std::atomic<std::size_t> next{0};
+    std::mutex progress_lock;
+    std::size_t done = 0;  // replicates finished, guarded by progress_lock
     auto work = [&] {
         for (std::size_t r = next++; r < B; r = next++) {
             try {
                 out.values[r] = replicate(ctx, r, options.seed);
             } catch (const std::exception& e) {
                 errors[r] = e.what();
+            }
+            if (options.progress) {
+                const std::lock_guard<std::mutex> hold(progress_lock);
+                options.progress(++done, B);
             }
         }
     };
