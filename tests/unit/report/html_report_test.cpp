@@ -17,6 +17,7 @@
 #include "safesite/report/html_report.hpp"
 #include "safesite/report/output_folder.hpp"
 #include "safesite/report/output_folder_reader.hpp"
+#include "safesite/report/svg_chart.hpp"
 #include "safesite/version.hpp"
 
 namespace fs = std::filesystem;
@@ -414,4 +415,57 @@ TEST_CASE("a missing or malformed summary.json is a data error naming the file",
     }
     CHECK_THROWS_AS(rerender_html_report(tmp.path), safesite::InputError);
     CHECK_FALSE(fs::exists(tmp.path / "report.html"));
+}
+
+TEST_CASE("figures are grouped by section; diagnostics and life-history tables get sections",
+          "[report][unit]") {
+    auto tables = all_tables();
+    // Tables of other areas, rendered generically (invented values).
+    tables.push_back({"mesh_check",
+                      {"kernel", "lambda_n", "lambda_2n", "relative_change"},
+                      {{text("pooled"), number(1.03), number(1.0301), number(1e-4)}}});
+    tables.push_back({"reducibility",
+                      {"kernel", "reducible", "lambda_renewing"},
+                      {{text("every seed on bare gravel"), integer(1), number(0.93745)}}});
+    TidyTable life{"life_expectancy", {"microsite", "size", "expectancy"}, {}};
+    for (int i = 0; i < 200; ++i)
+        life.rows.push_back({text("gravel"), number(0.01 * i), number(1.0 + 0.1 * i)});
+    tables.push_back(life);
+    SvgChart c1("Check one", "caption one");
+    SvgChart c2("Mesh one", "caption two");
+    SvgChart c3("Main one", "caption three");
+    const std::vector<Figure> figures = {{"check_a", c1.to_svg(), "Model checking"},
+                                         {"mesh_a", c2.to_svg(), "Diagnostics"},
+                                         {"main_a", c3.to_svg(), ""}};
+    const std::string html = render_html_report(tables, example_info(), figures);
+    CHECK(tag_balance_error(html).empty());
+    // Fixed order: main figures, model checking, tables, life history, diagnostics.
+    const std::vector<std::string> order = {
+        "id=\"contents\"",       "id=\"figures\"",         "id=\"figure-main_a\"",
+        "id=\"model-checking\"", "id=\"figure-check_a\"",  "id=\"tables\"",
+        "id=\"life-history\"",   "id=\"table-life_expectancy\"", "id=\"diagnostics\"",
+        "id=\"figure-mesh_a\"",  "id=\"table-mesh_check\"", "id=\"table-reducibility\"",
+        "id=\"assumptions\""};
+    std::size_t last = 0;
+    for (const auto& s : order) {
+        INFO(s);
+        const std::size_t at = html.find(s);
+        REQUIRE(at != std::string::npos);
+        CHECK(at > last);
+        last = at;
+    }
+    // Numbered in the order shown; listed in the contents.
+    CHECK(html.find("Figure 1.</strong> caption three") != std::string::npos);
+    CHECK(html.find("Figure 2.</strong> caption one") != std::string::npos);
+    CHECK(html.find("Figure 3.</strong> caption two") != std::string::npos);
+    CHECK(html.find("<a href=\"#figure-check_a\">Figure 2. Check one</a>") != std::string::npos);
+    CHECK(html.find("<a href=\"#table-reducibility\">reducibility</a>") != std::string::npos);
+    // Generic tables: every column and value; a long table shows 150 rows and says so.
+    CHECK(html.find("<th>lambda_renewing</th>") != std::string::npos);
+    CHECK(html.find(">0.9375<") != std::string::npos);  // 4 significant digits
+    CHECK(html.find("The first 150 of 200 rows") != std::string::npos);
+    // No Model checking section without its figures.
+    const std::string plain = render_html_report(all_tables(), example_info(), {});
+    CHECK(plain.find("id=\"model-checking\"") == std::string::npos);
+    CHECK(plain.find("id=\"life-history\"") == std::string::npos);
 }
