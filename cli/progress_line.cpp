@@ -8,9 +8,8 @@
 namespace safesite::cli {
 
 std::string clock_text(double seconds) {
-    const auto s = static_cast<long long>(std::isfinite(seconds) && seconds > 0.0
-                                              ? std::floor(seconds + 0.5)
-                                              : 0.0);
+    const auto s = static_cast<long long>(
+        std::isfinite(seconds) && seconds > 0.0 ? std::floor(seconds + 0.5) : 0.0);
     if (s >= 3600) return fmt::format("{}:{:02}:{:02}", s / 3600, (s / 60) % 60, s % 60);
     return fmt::format("{}:{:02}", s / 60, s % 60);
 }
@@ -30,7 +29,9 @@ std::string progress_text(const std::string& what, std::size_t done, std::size_t
 }
 
 ProgressLine::ProgressLine(const Streams& io, std::string what)
-    : m_io(io), m_what(std::move(what)), m_start(std::chrono::steady_clock::now()),
+    : m_io(io),
+      m_what(std::move(what)),
+      m_start(std::chrono::steady_clock::now()),
       m_last(m_start) {}
 
 ProgressLine::~ProgressLine() { finish(); }

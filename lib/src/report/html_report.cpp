@@ -87,7 +87,8 @@ std::optional<std::string> shown(const TidyTable& t, const std::vector<Cell>& ro
 // ---------------------------------------------------------------------------------------------
 // Sections
 
-constexpr const char* k_style = R"(body { font-family: sans-serif; line-height: 1.45; color: #1d1d1d;
+constexpr const char* k_style =
+    R"(body { font-family: sans-serif; line-height: 1.45; color: #1d1d1d;
   background: #fdfdfb; max-width: 62em; margin: 0 auto; padding: 1em 1.5em 3em; }
 h1 { font-size: 1.6em; margin-bottom: 0.2em; }
 h2 { font-size: 1.3em; border-bottom: 2px solid #5b7a4a; padding-bottom: 0.15em; margin-top: 2em; }
@@ -130,9 +131,10 @@ void header(std::string& o, const RunInfo& info) {
     if (info.warnings.empty())
         o += "<dt>warnings</dt><dd>none</dd>\n";
     else
-        o += fmt::format("<dt>warnings</dt><dd><a href=\"#warnings\">{} (listed below the "
-                         "caution)</a></dd>\n",
-                         info.warnings.size());
+        o += fmt::format(
+            "<dt>warnings</dt><dd><a href=\"#warnings\">{} (listed below the "
+            "caution)</a></dd>\n",
+            info.warnings.size());
     o += "</dl>\n</header>\n";
 }
 
@@ -416,17 +418,16 @@ void html_table(std::string& o, const TidyTable& t,
 /// One table with its heading, description and file name; at most `max_rows` rows shown.
 std::string table_block(const TidyTable& t, const std::vector<const std::vector<Cell>*>& rows,
                         const std::string& note, std::size_t max_rows) {
-    std::string body = "<section id=\"table-" + esc(t.name) + "\">\n<h3>" + esc(t.name) +
-                       "</h3>\n";
+    std::string body = "<section id=\"table-" + esc(t.name) + "\">\n<h3>" + esc(t.name) + "</h3>\n";
     std::string shown_note;
     std::vector<const std::vector<Cell>*> shown_rows = rows;
     if (shown_rows.size() > max_rows) {
         shown_rows.resize(max_rows);
-        shown_note = fmt::format(" The first {} of {} rows; all are in the file.", max_rows,
-                                 rows.size());
+        shown_note =
+            fmt::format(" The first {} of {} rows; all are in the file.", max_rows, rows.size());
     }
-    body += "<p class=\"note\">" + esc(table_description(t.name)) + esc(note) +
-            esc(shown_note) + " File: <code>" + esc(t.name) + ".csv</code>.</p>\n";
+    body += "<p class=\"note\">" + esc(table_description(t.name)) + esc(note) + esc(shown_note) +
+            " File: <code>" + esc(t.name) + ".csv</code>.</p>\n";
     html_table(body, t, shown_rows);
     body += "</section>\n";
     return body;
@@ -558,8 +559,7 @@ void contents(std::string& o, const std::vector<TidyTable>& tables, const RunInf
             std::string title = figure_title(figures[i]);
             if (title.empty()) title = figures[i].name;
             l += "<li>" +
-                 link("figure-" + figures[i].name,
-                      fmt::format("Figure {}. ", numbers[i]) + title) +
+                 link("figure-" + figures[i].name, fmt::format("Figure {}. ", numbers[i]) + title) +
                  "</li>\n";
         }
         return l.empty() ? l : "<ol>\n" + l + "</ol>\n";
@@ -587,7 +587,8 @@ void contents(std::string& o, const std::vector<TidyTable>& tables, const RunInf
     if (has_section(figures, "Diagnostics") || any_table(tables, diagnostic_table_names())) {
         std::vector<std::string> diag;
         for (const auto& n : diagnostic_table_names())
-            if (const TidyTable* t = find_table(tables, n); t && !t->rows.empty()) diag.push_back(n);
+            if (const TidyTable* t = find_table(tables, n); t && !t->rows.empty())
+                diag.push_back(n);
         o += "<li>" + link("diagnostics", "Diagnostics") + "\n" + figure_list("Diagnostics") +
              table_list(diag) + "</li>\n";
     }

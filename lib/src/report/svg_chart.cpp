@@ -4,8 +4,8 @@
 #include <array>
 #include <cassert>
 #include <cmath>
-#include <optional>
 #include <initializer_list>
+#include <optional>
 #include <string>
 #include <utility>
 
@@ -40,8 +40,10 @@ const char* dash_attribute(Dash dash) {
         case Dash::dashed: return " stroke-dasharray=\"7 4\"";
         case Dash::dotted: return " stroke-dasharray=\"2 3\"";
         case Dash::dash_dot: return " stroke-dasharray=\"8 3 2 3\"";
-        case Dash::long_dash: return " stroke-dasharray=\"14 5\"";
-        case Dash::dash_dot_dot: return " stroke-dasharray=\"9 3 2 3 2 3\"";
+        case Dash::long_dash:
+            return " stroke-dasharray=\"14 5\"";
+        case Dash::dash_dot_dot:
+            return " stroke-dasharray=\"9 3 2 3 2 3\"";
         case Dash::solid: break;
     }
     return "";
@@ -178,21 +180,49 @@ std::string marker(std::size_t series, double x, double y, const char* colour,
         case 1:
             return fmt::format("<rect{} x=\"{}\" y=\"{}\" width=\"8\" height=\"8\" fill=\"{}\"/>\n",
                                extra, px(x - 4.0), px(y - 4.0), colour);
-        case 2: return polygon({{0.0, -5.5}, {5.0, 3.5}, {-5.0, 3.5}});
-        case 3: return polygon({{0.0, -5.5}, {5.5, 0.0}, {0.0, 5.5}, {-5.5, 0.0}});
-        case 4: return polygon({{0.0, 5.5}, {5.0, -3.5}, {-5.0, -3.5}});
+        case 2:
+            return polygon({{0.0, -5.5}, {5.0, 3.5}, {-5.0, 3.5}});
+        case 3:
+            return polygon({{0.0, -5.5}, {5.5, 0.0}, {0.0, 5.5}, {-5.5, 0.0}});
+        case 4:
+            return polygon({{0.0, 5.5}, {5.0, -3.5}, {-5.0, -3.5}});
         case 5:
-            return polygon({{-1.8, -5.5}, {1.8, -5.5}, {1.8, -1.8}, {5.5, -1.8}, {5.5, 1.8},
-                            {1.8, 1.8}, {1.8, 5.5}, {-1.8, 5.5}, {-1.8, 1.8}, {-5.5, 1.8},
-                            {-5.5, -1.8}, {-1.8, -1.8}});
+            return polygon({{-1.8, -5.5},
+                            {1.8, -5.5},
+                            {1.8, -1.8},
+                            {5.5, -1.8},
+                            {5.5, 1.8},
+                            {1.8, 1.8},
+                            {1.8, 5.5},
+                            {-1.8, 5.5},
+                            {-1.8, 1.8},
+                            {-5.5, 1.8},
+                            {-5.5, -1.8},
+                            {-1.8, -1.8}});
         case 6:  // five-pointed star, outer radius 6, inner 2.6
-            return polygon({{0.0, -6.0}, {1.53, -2.1}, {5.71, -1.85}, {2.47, 0.8}, {3.53, 4.85},
-                            {0.0, 2.6}, {-3.53, 4.85}, {-2.47, 0.8}, {-5.71, -1.85},
+            return polygon({{0.0, -6.0},
+                            {1.53, -2.1},
+                            {5.71, -1.85},
+                            {2.47, 0.8},
+                            {3.53, 4.85},
+                            {0.0, 2.6},
+                            {-3.53, 4.85},
+                            {-2.47, 0.8},
+                            {-5.71, -1.85},
                             {-1.53, -2.1}});
         default:  // the plus turned by 45°
-            return polygon({{-3.9, -6.4}, {0.0, -2.5}, {3.9, -6.4}, {6.4, -3.9}, {2.5, 0.0},
-                            {6.4, 3.9}, {3.9, 6.4}, {0.0, 2.5}, {-3.9, 6.4}, {-6.4, 3.9},
-                            {-2.5, 0.0}, {-6.4, -3.9}});
+            return polygon({{-3.9, -6.4},
+                            {0.0, -2.5},
+                            {3.9, -6.4},
+                            {6.4, -3.9},
+                            {2.5, 0.0},
+                            {6.4, 3.9},
+                            {3.9, 6.4},
+                            {0.0, 2.5},
+                            {-3.9, 6.4},
+                            {-6.4, 3.9},
+                            {-2.5, 0.0},
+                            {-6.4, -3.9}});
     }
 }
 
@@ -217,8 +247,8 @@ std::size_t series_marker(std::size_t series) {
 }
 
 Dash series_dash(std::size_t i) {
-    constexpr Dash k_order[] = {Dash::solid,     Dash::dashed,   Dash::dotted,
-                                Dash::dash_dot,  Dash::long_dash, Dash::dash_dot_dot};
+    constexpr Dash k_order[] = {Dash::solid,    Dash::dashed,    Dash::dotted,
+                                Dash::dash_dot, Dash::long_dash, Dash::dash_dot_dot};
     return k_order[i % (sizeof(k_order) / sizeof(k_order[0]))];
 }
 
@@ -488,8 +518,8 @@ std::string SvgChart::to_svg() const {
     const double fs = L.font_size;
     const double title_fs = 1.3 * fs;
     const double caption_fs = 0.95 * fs;
-    const double line_h = 1.2 * fs;          // line height of wrapped labels
-    const double value_fs = 0.85 * fs;       // bar value labels
+    const double line_h = 1.2 * fs;             // line height of wrapped labels
+    const double value_fs = 0.85 * fs;          // bar value labels
     constexpr std::size_t k_legend_chars = 26;  // code points a legend line
 
     // 1. Scales: nice ticks for linear axes, bands for categorical ones.
@@ -512,8 +542,8 @@ std::string SvgChart::to_svg() const {
 
     // 2. Text blocks: the title wrapped to the canvas, y category labels wrapped so that
     // they fit their band, legend labels wrapped at k_legend_chars.
-    const auto title_chars = static_cast<std::size_t>(
-        std::max((L.width - 32.0) / (0.56 * title_fs), 10.0));
+    const auto title_chars =
+        static_cast<std::size_t>(std::max((L.width - 32.0) / (0.56 * title_fs), 10.0));
     std::vector<std::string> title = wrap_text(m_title, title_chars);
     if (title.empty()) title.push_back("");
     const double title_extra = 1.25 * title_fs * static_cast<double>(title.size() - 1);
@@ -565,14 +595,13 @@ std::string SvgChart::to_svg() const {
         std::vector<std::vector<std::string>> x_cats;
         double bottom = 0.0;
         Obstacles obstacles;
-        std::vector<Placed> labels;     // reference labels
-        bool needs_column = false;      // a y reference label found no free place
+        std::vector<Placed> labels;  // reference labels
+        bool needs_column = false;   // a y reference label found no free place
     };
     double ref_column = 0.0;  // width reserved right of the plot for reference labels
     auto lay_out = [&](double reserve) {
         Geometry g;
-        const double right =
-            L.margin_right + (legend.empty() ? 0.0 : legend_width + 8.0) + reserve;
+        const double right = L.margin_right + (legend.empty() ? 0.0 : legend_width + 8.0) + reserve;
         g.plot_w = std::max(L.width - left - right, 40.0);
         g.plot_right = plot_left + g.plot_w;
         sx.p0 = plot_left;
@@ -588,8 +617,7 @@ std::string SvgChart::to_svg() const {
         std::size_t x_lines = 1;
         if (m_x.categorical && !m_x.categories.empty()) {
             const double band = g.plot_w / static_cast<double>(m_x.categories.size());
-            const auto chars =
-                static_cast<std::size_t>(std::max(0.92 * band / (0.56 * fs), 4.0));
+            const auto chars = static_cast<std::size_t>(std::max(0.92 * band / (0.56 * fs), 4.0));
             for (const auto& c : m_x.categories) {
                 g.x_cats.push_back(wrap_text(c, chars));
                 x_lines = std::max(x_lines, g.x_cats.back().size());
@@ -607,15 +635,14 @@ std::string SvgChart::to_svg() const {
                 }
                 case Mark::Kind::line:
                     for (std::size_t i = 1; i < m.x.size(); ++i)
-                        g.obstacles.segments.push_back({sx(m.x[i - 1]), sy(m.y[i - 1]),
-                                                        sx(m.x[i]), sy(m.y[i])});
+                        g.obstacles.segments.push_back(
+                            {sx(m.x[i - 1]), sy(m.y[i - 1]), sx(m.x[i]), sy(m.y[i])});
                     break;
                 case Mark::Kind::whisker: {
                     const double x0 = sx(m.x[0]), x1 = sx(m.x[1]);
                     const double y0 = sy(m.y[0]), y1 = sy(m.y[1]);
                     g.obstacles.boxes.push_back({std::min(x0, x1) - 6.0, std::min(y0, y1) - 6.0,
-                                                 std::max(x0, x1) + 6.0,
-                                                 std::max(y0, y1) + 6.0});
+                                                 std::max(x0, x1) + 6.0, std::max(y0, y1) + 6.0});
                     break;
                 }
                 case Mark::Kind::bar: {
@@ -625,14 +652,18 @@ std::string SvgChart::to_svg() const {
                     double x0 = std::min(xa, xb), x1 = std::max(xa, xb);
                     if (!m.label.empty()) {  // room for a value label outside the bar
                         const double w = text_width(m.label, value_fs) + 6.0;
-                        if (xb >= xa) x1 += w; else x0 -= w;
+                        if (xb >= xa)
+                            x1 += w;
+                        else
+                            x0 -= w;
                     }
                     g.obstacles.boxes.push_back({x0, y - h / 2.0 - 1.0, x1, y + h / 2.0 + 1.0});
                     break;
                 }
                 case Mark::Kind::band:
                 case Mark::Kind::ref_x:
-                case Mark::Kind::ref_y: break;
+                case Mark::Kind::ref_y:
+                    break;
             }
         }
 
@@ -649,15 +680,15 @@ std::string SvgChart::to_svg() const {
             std::vector<std::pair<double, double>> tries;
             if (m.kind == Mark::Kind::ref_x) {
                 const double x = sx(m.x[0]);
-                for (double yb : {plot_top + 4.0 + a, plot_bottom - 4.0 - d,
-                                  plot_top + plot_h / 2.0}) {
+                for (double yb :
+                     {plot_top + 4.0 + a, plot_bottom - 4.0 - d, plot_top + plot_h / 2.0}) {
                     tries.emplace_back(x + 5.0, yb);
                     tries.emplace_back(x - 5.0 - w, yb);
                 }
             } else {
                 const double y = sy(m.y[0]);
-                for (double xs : {g.plot_right - 5.0 - w, plot_left + 5.0,
-                                  plot_left + (g.plot_w - w) / 2.0}) {
+                for (double xs :
+                     {g.plot_right - 5.0 - w, plot_left + 5.0, plot_left + (g.plot_w - w) / 2.0}) {
                     tries.emplace_back(xs, y - 4.0 - d);
                     tries.emplace_back(xs, y + 4.0 + a);
                 }
@@ -733,7 +764,8 @@ std::string SvgChart::to_svg() const {
         std::max((L.width - 32.0) / (0.5 * caption_fs), 20.0));
     const std::vector<std::string> caption = wrap_text(m_caption, caption_chars);
     const double height =
-        content_bottom + (caption.empty() ? 0.0 : 8.0 + caption_line * static_cast<double>(caption.size()));
+        content_bottom +
+        (caption.empty() ? 0.0 : 8.0 + caption_line * static_cast<double>(caption.size()));
 
     std::string o;
     o.reserve(16384);
@@ -781,16 +813,18 @@ std::string SvgChart::to_svg() const {
                 }
                 case Mark::Kind::ref_x: {
                     const double x = sx(m.x[0]);
-                    o += fmt::format("<line class=\"reference\" x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" "
-                                     "y2=\"{2}\" stroke=\"{3}\" stroke-width=\"1.2\"/>\n",
-                                     px(x), px(plot_top), px(plot_bottom), k_reference);
+                    o += fmt::format(
+                        "<line class=\"reference\" x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" "
+                        "y2=\"{2}\" stroke=\"{3}\" stroke-width=\"1.2\"/>\n",
+                        px(x), px(plot_top), px(plot_bottom), k_reference);
                     break;
                 }
                 case Mark::Kind::ref_y: {
                     const double y = sy(m.y[0]);
-                    o += fmt::format("<line class=\"reference\" x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" "
-                                     "y2=\"{1}\" stroke=\"{3}\" stroke-width=\"1.2\"/>\n",
-                                     px(plot_left), px(y), px(plot_right), k_reference);
+                    o += fmt::format(
+                        "<line class=\"reference\" x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" "
+                        "y2=\"{1}\" stroke=\"{3}\" stroke-width=\"1.2\"/>\n",
+                        px(plot_left), px(y), px(plot_right), k_reference);
                     break;
                 }
                 case Mark::Kind::bar: {
@@ -809,14 +843,12 @@ std::string SvgChart::to_svg() const {
                         const bool fits = right ? xb + 4.0 + w <= plot_right - 2.0
                                                 : xb - 4.0 - w >= plot_left + 2.0;
                         const bool out_right = fits == right;
-                        const char* fill = fits ? k_ink
-                                                : (lightness(c) < 55.0 ? "#ffffff" : k_ink);
-                        o += fmt::format("<text class=\"value-label\" x=\"{}\" y=\"{}\" "
-                                         "font-size=\"{}\" fill=\"{}\"{}>{}</text>\n",
-                                         px(xb + (out_right ? 4.0 : -4.0)), px(y + 0.3 * fs),
-                                         px(value_fs), fill,
-                                         out_right ? "" : " text-anchor=\"end\"",
-                                         xml_escape(m.label));
+                        const char* fill = fits ? k_ink : (lightness(c) < 55.0 ? "#ffffff" : k_ink);
+                        o += fmt::format(
+                            "<text class=\"value-label\" x=\"{}\" y=\"{}\" "
+                            "font-size=\"{}\" fill=\"{}\"{}>{}</text>\n",
+                            px(xb + (out_right ? 4.0 : -4.0)), px(y + 0.3 * fs), px(value_fs), fill,
+                            out_right ? "" : " text-anchor=\"end\"", xml_escape(m.label));
                     }
                     break;
                 }
@@ -857,8 +889,9 @@ std::string SvgChart::to_svg() const {
         draw(kind);
     }
     for (const auto& p : g.labels) {
-        o += fmt::format("<text class=\"reference-label\" x=\"{}\" y=\"{}\" fill=\"{}\">{}</text>\n",
-                         px(p.x), px(p.y), k_reference, xml_escape(m_marks[p.mark].label));
+        o +=
+            fmt::format("<text class=\"reference-label\" x=\"{}\" y=\"{}\" fill=\"{}\">{}</text>\n",
+                        px(p.x), px(p.y), k_reference, xml_escape(m_marks[p.mark].label));
     }
 
     // 6. Axes: a line along the left and bottom of the plot, outward ticks, tick labels.
@@ -873,9 +906,9 @@ std::string SvgChart::to_svg() const {
             const double x = sx(static_cast<double>(i));
             o += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\"/>\n", px(x),
                              px(plot_bottom), px(plot_bottom + 5.0));
-            labels += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n",
-                                  px(x), px(plot_bottom + 9.0 + fs),
-                                  text_lines(g.x_cats[i], x, line_h));
+            labels +=
+                fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n", px(x),
+                            px(plot_bottom + 9.0 + fs), text_lines(g.x_cats[i], x, line_h));
         }
     } else {
         for (double t : sx.ticks.values) {
@@ -951,23 +984,25 @@ std::string SvgChart::to_svg() const {
             if (s == Swatch::point || s == Swatch::point_line) {
                 o += marker(i, x + 11.0, y, c, "");  // as the point marks, no class
             }
-            o += fmt::format("<text x=\"{}\" y=\"{}\">{}</text>\n", px(x + 30.0),
-                             px(y + 0.35 * fs), text_lines(legend_text[k], x + 30.0, line_h));
+            o += fmt::format("<text x=\"{}\" y=\"{}\">{}</text>\n", px(x + 30.0), px(y + 0.35 * fs),
+                             text_lines(legend_text[k], x + 30.0, line_h));
         }
         o += "</g>\n";
     }
 
     // 9. Title above the plot; caption lines under everything, as the last element.
-    o += fmt::format("<text class=\"title\" x=\"16\" y=\"{}\" font-size=\"{}\" "
-                     "font-weight=\"bold\">{}</text>\n",
-                     px(16.0 + title_fs), px(title_fs), text_lines(title, 16.0, 1.25 * title_fs));
+    o += fmt::format(
+        "<text class=\"title\" x=\"16\" y=\"{}\" font-size=\"{}\" "
+        "font-weight=\"bold\">{}</text>\n",
+        px(16.0 + title_fs), px(title_fs), text_lines(title, 16.0, 1.25 * title_fs));
     if (!caption.empty()) {
         o += fmt::format("<g class=\"caption\" transform=\"translate(0 {})\">\n",
                          px(content_bottom));
         for (std::size_t i = 0; i < caption.size(); ++i) {
-            o += fmt::format("<text x=\"16\" y=\"{}\" font-size=\"{}\" fill=\"#444444\">{}</text>\n",
-                             px(8.0 + caption_line * static_cast<double>(i + 1) - 0.35 * caption_fs),
-                             px(caption_fs), xml_escape(caption[i]));
+            o +=
+                fmt::format("<text x=\"16\" y=\"{}\" font-size=\"{}\" fill=\"#444444\">{}</text>\n",
+                            px(8.0 + caption_line * static_cast<double>(i + 1) - 0.35 * caption_fs),
+                            px(caption_fs), xml_escape(caption[i]));
         }
         o += "</g>\n";
     }

@@ -208,9 +208,9 @@ TEST_CASE("the report puts the caution near the top and the sections in reading 
     REQUIRE(caution != std::string::npos);
     // Warnings right under the caution when there are any, then the contents.
     const std::vector<std::string> order = {
-        "<header>",          "id=\"caution\"",     "id=\"warnings\"",    "id=\"contents\"",
-        "id=\"key-results\"", "id=\"figures\"",     "id=\"tables\"",      "id=\"assumptions\"",
-        "id=\"files\""};
+        "<header>",        "id=\"caution\"",     "id=\"warnings\"",
+        "id=\"contents\"", "id=\"key-results\"", "id=\"figures\"",
+        "id=\"tables\"",   "id=\"assumptions\"", "id=\"files\""};
     std::size_t last = 0;
     for (const auto& s : order) {
         INFO(s);
@@ -322,12 +322,10 @@ TEST_CASE("figures are inlined with their caption; unsafe SVG is left out", "[re
     const std::string& first = figures.front().svg;
     const std::size_t ty = first.find("translate(0 ") + 12;
     const std::string y = first.substr(ty, first.find(')', ty) - ty);
-    CHECK(html.find("height=\"" + y + "\" viewBox=\"0 0 720.00 " + y + "\"") !=
-          std::string::npos);
+    CHECK(html.find("height=\"" + y + "\" viewBox=\"0 0 720.00 " + y + "\"") != std::string::npos);
 
     const Figure bad{"evil",
-                     "<svg xmlns=\"http://www.w3.org/2000/svg\"><script>x()</script></svg>\n",
-                     ""};
+                     "<svg xmlns=\"http://www.w3.org/2000/svg\"><script>x()</script></svg>\n", ""};
     const Figure declared{"declared",
                           "<?xml version=\"1.0\"?>\n<svg><title>T &amp; U</title>"
                           "<desc>D &amp; E</desc></svg>\n",
@@ -441,10 +439,12 @@ TEST_CASE("figures are grouped by section; diagnostics and life-history tables g
     CHECK(tag_balance_error(html).empty());
     // Fixed order: main figures, model checking, tables, life history, diagnostics.
     const std::vector<std::string> order = {
-        "id=\"contents\"",       "id=\"figures\"",         "id=\"figure-main_a\"",
-        "id=\"model-checking\"", "id=\"figure-check_a\"",  "id=\"tables\"",
-        "id=\"life-history\"",   "id=\"table-life_expectancy\"", "id=\"diagnostics\"",
-        "id=\"figure-mesh_a\"",  "id=\"table-mesh_check\"", "id=\"table-reducibility\"",
+        "id=\"contents\"",         "id=\"figures\"",
+        "id=\"figure-main_a\"",    "id=\"model-checking\"",
+        "id=\"figure-check_a\"",   "id=\"tables\"",
+        "id=\"life-history\"",     "id=\"table-life_expectancy\"",
+        "id=\"diagnostics\"",      "id=\"figure-mesh_a\"",
+        "id=\"table-mesh_check\"", "id=\"table-reducibility\"",
         "id=\"assumptions\""};
     std::size_t last = 0;
     for (const auto& s : order) {

@@ -47,9 +47,8 @@ Vec3 linear_rgb(const std::string& hex) {
     REQUIRE(std::regex_match(hex, std::regex("#[0-9a-f]{6}")));
     Vec3 v{};
     for (int i = 0; i < 3; ++i)
-        v[static_cast<std::size_t>(i)] =
-            decode(std::stoi(hex.substr(1 + 2 * static_cast<std::size_t>(i), 2), nullptr, 16) /
-                   255.0);
+        v[static_cast<std::size_t>(i)] = decode(
+            std::stoi(hex.substr(1 + 2 * static_cast<std::size_t>(i), 2), nullptr, 16) / 255.0);
     return v;
 }
 
@@ -63,7 +62,9 @@ Vec3 simulate(const Mat3& m, const Vec3& rgb) {
     return out;
 }
 
-double luminance(const Vec3& rgb) { return 0.2126729 * rgb[0] + 0.7151522 * rgb[1] + 0.0721750 * rgb[2]; }
+double luminance(const Vec3& rgb) {
+    return 0.2126729 * rgb[0] + 0.7151522 * rgb[1] + 0.0721750 * rgb[2];
+}
 
 Vec3 lab(const Vec3& rgb) {
     const double x = 0.4124564 * rgb[0] + 0.3575761 * rgb[1] + 0.1804375 * rgb[2];
@@ -84,7 +85,8 @@ double rad(double d) { return d * k_pi / 180.0; }
 double ciede2000(const Vec3& a, const Vec3& b) {
     const double c1 = std::hypot(a[1], a[2]), c2 = std::hypot(b[1], b[2]);
     const double cb = (c1 + c2) / 2.0;
-    const double g = 0.5 * (1.0 - std::sqrt(std::pow(cb, 7) / (std::pow(cb, 7) + std::pow(25.0, 7))));
+    const double g =
+        0.5 * (1.0 - std::sqrt(std::pow(cb, 7) / (std::pow(cb, 7) + std::pow(25.0, 7))));
     const double a1 = (1.0 + g) * a[1], a2 = (1.0 + g) * b[1];
     const double c1p = std::hypot(a1, a[2]), c2p = std::hypot(a2, b[2]);
     auto hue = [](double bb, double aa) {
@@ -97,22 +99,28 @@ double ciede2000(const Vec3& a, const Vec3& b) {
     double dh = 0.0;
     if (c1p * c2p != 0.0) {
         dh = h2 - h1;
-        if (dh > 180.0) dh -= 360.0;
-        else if (dh < -180.0) dh += 360.0;
+        if (dh > 180.0)
+            dh -= 360.0;
+        else if (dh < -180.0)
+            dh += 360.0;
     }
     const double dH = 2.0 * std::sqrt(c1p * c2p) * std::sin(rad(dh / 2.0));
     const double lb = (a[0] + b[0]) / 2.0, cbp = (c1p + c2p) / 2.0;
     double hb = h1 + h2;
     if (c1p * c2p != 0.0) {
-        if (std::fabs(h1 - h2) <= 180.0) hb = (h1 + h2) / 2.0;
-        else if (h1 + h2 < 360.0) hb = (h1 + h2 + 360.0) / 2.0;
-        else hb = (h1 + h2 - 360.0) / 2.0;
+        if (std::fabs(h1 - h2) <= 180.0)
+            hb = (h1 + h2) / 2.0;
+        else if (h1 + h2 < 360.0)
+            hb = (h1 + h2 + 360.0) / 2.0;
+        else
+            hb = (h1 + h2 - 360.0) / 2.0;
     }
     const double t = 1.0 - 0.17 * std::cos(rad(hb - 30.0)) + 0.24 * std::cos(rad(2.0 * hb)) +
                      0.32 * std::cos(rad(3.0 * hb + 6.0)) - 0.20 * std::cos(rad(4.0 * hb - 63.0));
     const double dtheta = 30.0 * std::exp(-std::pow((hb - 275.0) / 25.0, 2));
     const double rc = 2.0 * std::sqrt(std::pow(cbp, 7) / (std::pow(cbp, 7) + std::pow(25.0, 7)));
-    const double sl = 1.0 + 0.015 * std::pow(lb - 50.0, 2) / std::sqrt(20.0 + std::pow(lb - 50.0, 2));
+    const double sl =
+        1.0 + 0.015 * std::pow(lb - 50.0, 2) / std::sqrt(20.0 + std::pow(lb - 50.0, 2));
     const double sc = 1.0 + 0.045 * cbp, sh = 1.0 + 0.015 * cbp * t;
     const double rt = -std::sin(rad(2.0 * dtheta)) * rc;
     return std::sqrt(std::pow(dl / sl, 2) + std::pow(dc / sc, 2) + std::pow(dH / sh, 2) +
@@ -153,9 +161,10 @@ TEST_CASE("CIEDE2000 as coded here matches Sharma, Wu & Dalal's test pairs", "[r
         for (const auto& row : *m) CHECK(row[0] + row[1] + row[2] == Approx(1.0).margin(2e-6));
 }
 
-TEST_CASE("the series palette has 8 colours that stay apart for common colour-vision "
-          "deficiencies",
-          "[report][unit]") {
+TEST_CASE(
+    "the series palette has 8 colours that stay apart for common colour-vision "
+    "deficiencies",
+    "[report][unit]") {
     const auto& p = series_palette();
     REQUIRE(p.size() >= 8);
     CHECK(std::set<std::string>(p.begin(), p.end()).size() == p.size());
@@ -212,8 +221,8 @@ TEST_CASE("series beyond the palette differ by marker; dashes cycle", "[report][
         shapes.insert(kind + std::to_string(vertices));
     }
     // circle, rect, triangles (2 with 3 vertices), diamond (4), plus and cross (12), star (10).
-    CHECK(shapes == std::set<std::string>{"circle0", "rect0", "polygon3", "polygon4",
-                                          "polygon10", "polygon12"});
+    CHECK(shapes == std::set<std::string>{"circle0", "rect0", "polygon3", "polygon4", "polygon10",
+                                          "polygon12"});
 }
 
 TEST_CASE("labels are wrapped, never cut", "[report][unit]") {
@@ -229,16 +238,17 @@ TEST_CASE("labels are wrapped, never cut", "[report][unit]") {
     CHECK(wrap_text("\u03bb\u03bb\u03bb \u2192\u2192", 3) ==
           std::vector<std::string>{"\u03bb\u03bb\u03bb", "\u2192\u2192"});
     // A long category label is drawn whole: every word is in the SVG.
-    const std::string name = "calmer autumn: gravel departures halved and snowmelt late by "
-                             "three weeks";
+    const std::string name =
+        "calmer autumn: gravel departures halved and snowmelt late by "
+        "three weeks";
     SvgChart chart("t", "c");
     chart.set_y_categories({name, "b"});
     const auto s = chart.add_series("", Swatch::bar);
     chart.add_hbar(s, 0.0, 0.0, 1.0, 0.5);
     const std::string svg = chart.to_svg();
     CHECK(svg.find("\u2026") == std::string::npos);
-    for (const char* word : {"calmer", "autumn:", "gravel", "departures", "halved", "snowmelt",
-                             "three", "weeks"})
+    for (const char* word :
+         {"calmer", "autumn:", "gravel", "departures", "halved", "snowmelt", "three", "weeks"})
         CHECK(svg.find(word) != std::string::npos);
     CHECK(svg.find("<tspan") != std::string::npos);
 }
