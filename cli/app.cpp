@@ -116,6 +116,11 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream& e
     app.set_help_flag("-h,--help", "print this help and exit");
     bool show_version = false;
     app.add_flag("--version", show_version, "print the version and exit");
+    bool quiet = false;
+    app.add_flag("-q,--quiet", quiet,
+                 "no progress lines on the terminal (warnings and errors are still printed); "
+                 "before or after the verb");
+    app.fallthrough();  // --quiet is also taken after the verb
     app.require_subcommand(0, 1);
     app.footer("Run 'safesite <verb> --help' for the options of a verb. Exit status: 0 ok, "
                "2 bad usage, 3 bad input (data, model file, output folder), 4 numerical "
@@ -163,6 +168,7 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream& e
         return exit_usage;
     }
 
+    if (quiet) io.progress = false;
     try {
         const int status = chosen->action(io);
         // A stop requested after the last safe point: the output is complete, but the run was

@@ -10,6 +10,7 @@
 #include "common.hpp"
 #include "options.hpp"
 #include "safesite/io/staged_folder.hpp"
+#include "progress_line.hpp"
 #include "safesite/pipeline/bootstrap.hpp"
 #include "safesite/pipeline/kernel_matrices.hpp"
 #include "safesite/pipeline/run.hpp"
@@ -61,7 +62,10 @@ int run_run(const RunOptions& o, const Streams& io) {
         b.seed = model.uncertainty.seed;
         b.level = model.uncertainty.level;
         b.threads = o.threads;
+        ProgressLine line(io, "bootstrap replicates");
+        b.progress = [&line](std::size_t done, std::size_t total) { line.update(done, total); };
         const pipeline::BootstrapResult boot = pipeline::bootstrap(model, result, b);
+        line.finish();
         for (auto& t : pipeline::bootstrap_tables(boot)) tables.push_back(std::move(t));
         warnings.insert(warnings.end(), boot.warnings.begin(), boot.warnings.end());
     }

@@ -5,6 +5,7 @@
 #include <cmath>
 #include <limits>
 #include <map>
+#include <mutex>
 #include <thread>
 
 #include "safesite/census/census.hpp"
@@ -258,6 +259,8 @@ BootstrapResult bootstrap(const spec::ModelSpec& model, const RunResult& baselin
     std::vector<std::string> errors(B);
     std::vector<char> reducible(B, 0);  // char, not bool: written by several threads
     std::atomic<std::size_t> next{0};
+    std::mutex progress_lock;
+    std::size_t done = 0;  // replicates finished, guarded by progress_lock
     auto work = [&] {
         for (std::size_t r = next++; r < B; r = next++) {
             try {
@@ -266,6 +269,10 @@ BootstrapResult bootstrap(const spec::ModelSpec& model, const RunResult& baselin
                 reducible[r] = red ? 1 : 0;
             } catch (const std::exception& e) {
                 errors[r] = e.what();
+            }
+            if (options.progress) {
+                const std::lock_guard<std::mutex> hold(progress_lock);
+                options.progress(++done, B);
             }
         }
     };

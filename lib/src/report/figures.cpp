@@ -23,6 +23,9 @@ namespace fs = std::filesystem;
 
 constexpr double k_nan = std::numeric_limits<double>::quiet_NaN();
 
+/// The category of the seeds lost in the arrival figure.
+constexpr const char* k_lost_category = "lost (in no microsite)";
+
 /// The table of that name, or nullptr.
 const TidyTable* find_table(const std::vector<TidyTable>& tables, const std::string& name) {
     for (const auto& t : tables) {
@@ -248,10 +251,9 @@ std::optional<Figure> retention_curves_figure(const std::vector<TidyTable>& tabl
     chart.include_x(0.0);
     chart.include_y(0.0);
     chart.include_y(1.0);
-    constexpr Dash k_dashes[] = {Dash::solid, Dash::dashed, Dash::dotted, Dash::dash_dot};
     for (std::size_t i = 0; i < sites.size(); ++i) {
         const auto [x, y] = sorted_by_x(curves[sites[i]]);
-        const std::size_t s = chart.add_series(sites[i], Swatch::line, k_dashes[i % 4]);
+        const std::size_t s = chart.add_series(sites[i], Swatch::line, series_dash(i));
         chart.add_line(s, x, y);
     }
     return finish(chart, "retention_curves");
@@ -266,27 +268,40 @@ std::optional<Figure> arrival_figure(const std::vector<TidyTable>& tables) {
         add_unique(scenarios, label(row, (*c)[0]));
         add_unique(sites, label(row, (*c)[1]));
     }
+    // The seeds lost per scenario: 1 − Σ a_m over its microsites, when every a_m is finite.
+    std::vector<double> lost(scenarios.size(), 1.0);
+    for (const auto& row : t->rows)
+        lost[index_of(scenarios, label(row, (*c)[0]))] -= value(row, (*c)[2]);
+    for (double& l : lost)
+        if (std::isfinite(l) && std::fabs(l) < 1e-12) l = 0.0;  // rounding of a full sum
+    std::vector<std::string> categories = sites;
+    categories.push_back(k_lost_category);
     // Room for a legend of scenario names; about 24 px a bar.
-    SvgChart::Layout layout = banded_layout(sites.size() * scenarios.size() / 2, 800.0);
-    SvgChart chart("Arrival fractions per microsite",
-                   "Share of all seeds produced that lie in each microsite at germination time "
-                   "(the rest is lost).",
+    SvgChart::Layout layout = banded_layout(categories.size() * scenarios.size() / 2, 800.0);
+    SvgChart chart("Arrival fractions per microsite and seeds lost",
+                   "Share of all seeds produced that lie in each microsite at germination time; "
+                   "below the line, the share lost (in no microsite: 1 \u2212 \u03a3 a\u2098). "
+                   "In each group the bars follow the legend from the top.",
                    layout);
-    chart.set_y_categories(sites);
-    chart.set_x_label("arrival fraction a\u2098");
+    chart.set_y_categories(categories);
+    chart.set_x_label("share of all seeds produced");
     chart.include_x(0.0);
     std::vector<std::size_t> series;
     for (const auto& s : scenarios) series.push_back(chart.add_series(s, Swatch::bar));
-    // Bars of one microsite share 80 % of its band, in legend order from the top.
+    // Bars of one group share 80 % of its band, in legend order from the top.
     const double k = static_cast<double>(scenarios.size());
     const double thickness = 0.8 / k;
-    for (const auto& row : t->rows) {
-        const std::size_t j = index_of(scenarios, label(row, (*c)[0]));
-        const double m = static_cast<double>(index_of(sites, label(row, (*c)[1])));
-        const double centre = m - 0.4 + (static_cast<double>(j) + 0.5) * thickness;
-        const double a = value(row, (*c)[2]);
+    auto bar = [&](std::size_t j, double group, double a) {
+        const double centre = group - 0.4 + (static_cast<double>(j) + 0.5) * thickness;
         chart.add_hbar(series[j], centre, 0.0, a, thickness * 0.92, fmt::format("{:.3g}", a));
+    };
+    for (const auto& row : t->rows) {
+        bar(index_of(scenarios, label(row, (*c)[0])),
+            static_cast<double>(index_of(sites, label(row, (*c)[1]))), value(row, (*c)[2]));
     }
+    const double lost_group = static_cast<double>(sites.size());
+    for (std::size_t j = 0; j < scenarios.size(); ++j) bar(j, lost_group, lost[j]);
+    chart.add_reference_y(lost_group - 0.5, "");
     return finish(chart, "arrival");
 }
 

@@ -1,6 +1,9 @@
 #include "safesite/report/html_report.hpp"
 
+#include <algorithm>
+#include <cctype>
 #include <cmath>
+#include <cstdlib>
 #include <map>
 #include <optional>
 
@@ -84,7 +87,8 @@ std::optional<std::string> shown(const TidyTable& t, const std::vector<Cell>& ro
 // ---------------------------------------------------------------------------------------------
 // Sections
 
-constexpr const char* k_style = R"(body { font-family: sans-serif; line-height: 1.45; color: #1d1d1d;
+constexpr const char* k_style =
+    R"(body { font-family: sans-serif; line-height: 1.45; color: #1d1d1d;
   background: #fdfdfb; max-width: 62em; margin: 0 auto; padding: 1em 1.5em 3em; }
 h1 { font-size: 1.6em; margin-bottom: 0.2em; }
 h2 { font-size: 1.3em; border-bottom: 2px solid #5b7a4a; padding-bottom: 0.15em; margin-top: 2em; }
@@ -96,6 +100,12 @@ dl.meta dd { margin: 0; }
 .caution h2 { border: none; margin: 0 0 0.3em; font-size: 1.1em; }
 .caution p { margin: 0; }
 ul.key li { margin: 0.25em 0; }
+.warnings { border: 2px solid #8c2f39; background: #fbeaec; padding: 0.6em 1em; margin: 1.2em 0; }
+.warnings h2 { border: none; margin: 0 0 0.3em; font-size: 1.1em; }
+.warnings ul { margin: 0; }
+nav#contents ol { margin: 0.2em 0; }
+nav#contents > ol > li { margin: 0.3em 0; }
+nav#contents ol ol { font-size: 0.92em; }
 figure { margin: 1.5em 0; }
 figure svg { max-width: 100%; height: auto; }
 figcaption { font-size: 0.92em; color: #333; }
@@ -118,6 +128,13 @@ void header(std::string& o, const RunInfo& info) {
     const std::string v = info.safesite_version.empty() ? version() : info.safesite_version;
     o += "<dt>safesite version</dt><dd>" + esc(v) + "</dd>\n";
     if (info.seed) o += fmt::format("<dt>seed</dt><dd>{}</dd>\n", *info.seed);
+    if (info.warnings.empty())
+        o += "<dt>warnings</dt><dd>none</dd>\n";
+    else
+        o += fmt::format(
+            "<dt>warnings</dt><dd><a href=\"#warnings\">{} (listed below the "
+            "caution)</a></dd>\n",
+            info.warnings.size());
     o += "</dl>\n</header>\n";
 }
 
@@ -241,36 +258,141 @@ std::optional<std::string> inline_svg(const std::string& text) {
     return svg;
 }
 
-void figures_section(std::string& o, const std::vector<Figure>& figures) {
-    if (figures.empty()) return;
-    o += "<section id=\"figures\">\n<h2>Figures</h2>\n";
-    std::size_t n = 0;
-    for (const auto& f : figures) {
-        ++n;
-        const std::string file = "figures/" + f.name + ".svg";
-        const auto svg = inline_svg(f.svg);
-        o += "<figure>\n";
-        if (svg) {
-            o += *svg + "\n";
-        } else {
-            o += "<p class=\"note\">This figure was left out: its file is not a plain SVG "
-                 "drawing without scripts or links.</p>\n";
-        }
-        // Caption: the figure's title and its caption line (the <desc> element, less the
-        // caution that figures carry there and this report shows at the top).
-        const std::string title = svg ? svg_element_text(*svg, "title") : std::string();
-        std::string desc = svg ? svg_element_text(*svg, "desc") : std::string();
-        const std::string tail = std::string(" ") + k_caution;
-        if (desc.size() >= tail.size() &&
-            desc.compare(desc.size() - tail.size(), tail.size(), tail) == 0)
-            desc.erase(desc.size() - tail.size());
-        o += fmt::format("<figcaption><strong>Figure {}.</strong> ", n);
-        if (!title.empty()) o += esc(title) + ". ";
-        if (!desc.empty()) o += esc(desc) + " ";
-        o += "(<code>" + esc(file) + "</code>)</figcaption>\n</figure>\n";
-    }
-    o += "</section>\n";
+/// An inlined figure less its drawn caption: the last element of an SvgChart document is
+/// `<g class="caption" transform="translate(0 Y)">…</g>`; it is removed and the drawing cut at
+/// height Y (width, height and viewBox of the root element). Other SVG is left as it is.
+std::string without_drawn_caption(const std::string& svg) {
+    const std::string key = "<g class=\"caption\" transform=\"translate(0 ";
+    const std::size_t g = svg.rfind(key);
+    if (g == std::string::npos) return svg;
+    const std::size_t close = svg.find("</g>", g);
+    if (close == std::string::npos) return svg;
+    const std::size_t after = svg.find_first_not_of(" \t\r\n", close + 4);
+    if (after == std::string::npos || svg.compare(after, 6, "</svg>") != 0) return svg;
+    const std::string y_text = svg.substr(g + key.size(), svg.find(')', g) - g - key.size());
+    char* end = nullptr;
+    const double y = std::strtod(y_text.c_str(), &end);
+    if (end == y_text.c_str() || !std::isfinite(y) || y <= 0.0) return svg;
+    std::string out = svg.substr(0, g) + svg.substr(after);
+    // Root attributes: height="H" and viewBox="0 0 W H" become Y.
+    const std::size_t head_end = out.find('>');
+    std::string head = out.substr(0, head_end);
+    const std::string h = format_fixed(y, 2);
+    const std::size_t hp = head.find(" height=\"");
+    const std::size_t vp = head.find(" viewBox=\"0 0 ");
+    if (hp == std::string::npos || vp == std::string::npos) return svg;
+    const std::size_t hq = head.find('"', hp + 9);
+    head.replace(hp + 9, hq - hp - 9, h);
+    const std::size_t vs = head.find(" viewBox=\"0 0 ") + 15;
+    const std::size_t ve = head.find('"', vs);
+    const std::string wh = head.substr(vs, ve - vs);
+    const std::size_t space = wh.find(' ');
+    if (space == std::string::npos) return svg;
+    head.replace(vs, ve - vs, wh.substr(0, space) + " " + h);
+    return head + out.substr(head_end);
 }
+
+/// The section of the report figures of `section` go to: its heading and anchor.
+struct FigureSection {
+    std::string key;  ///< Figure::section
+    std::string heading;
+    std::string id;
+};
+
+/// Anchor text of a free heading: lower-case letters and digits, other runs as '-'.
+std::string slug(const std::string& s) {
+    std::string out;
+    for (unsigned char c : s) {
+        if (std::isalnum(c) != 0 && c < 0x80) {
+            out += static_cast<char>(std::tolower(c));
+        } else if (!out.empty() && out.back() != '-') {
+            out += '-';
+        }
+    }
+    while (!out.empty() && out.back() == '-') out.pop_back();
+    return out.empty() ? std::string("section") : out;
+}
+
+/// Sections of the figures in report order: main results, "Model checking", others in order
+/// of first appearance, "Diagnostics" (which the diagnostics section shows with its tables).
+std::vector<FigureSection> figure_sections(const std::vector<Figure>& figures) {
+    std::vector<std::string> keys = {"", "Model checking"};
+    for (const auto& f : figures)
+        if (f.section != "Diagnostics" &&
+            std::find(keys.begin(), keys.end(), f.section) == keys.end())
+            keys.push_back(f.section);
+    keys.push_back("Diagnostics");
+    std::vector<FigureSection> out;
+    for (const auto& k : keys) {
+        if (k.empty()) {
+            out.push_back({k, "Figures", "figures"});
+        } else if (k == "Diagnostics") {
+            out.push_back({k, k, "diagnostics"});
+        } else if (k == "Model checking") {
+            out.push_back({k, k, "model-checking"});
+        } else {
+            out.push_back({k, k, "section-" + slug(k)});
+        }
+    }
+    return out;
+}
+
+/// Figure numbers in the order the report shows them (by section, then as given).
+std::vector<std::size_t> figure_numbers(const std::vector<Figure>& figures) {
+    std::vector<std::size_t> number(figures.size(), 0);
+    std::size_t n = 0;
+    for (const auto& s : figure_sections(figures))
+        for (std::size_t i = 0; i < figures.size(); ++i)
+            if (figures[i].section == s.key) number[i] = ++n;
+    return number;
+}
+
+std::string figure_title(const Figure& f) {
+    const auto svg = inline_svg(f.svg);
+    return svg ? svg_element_text(*svg, "title") : std::string();
+}
+
+void figure_html(std::string& o, const Figure& f, std::size_t n) {
+    const std::string file = "figures/" + f.name + ".svg";
+    const auto svg = inline_svg(f.svg);
+    o += "<figure id=\"figure-" + esc(f.name) + "\">\n";
+    if (svg) {
+        o += without_drawn_caption(*svg) + "\n";
+    } else {
+        o += "<p class=\"note\">This figure was left out: its file is not a plain SVG "
+             "drawing without scripts or links.</p>\n";
+    }
+    // Caption, once: the figure's caption line (the <desc> element, less the caution that
+    // figures carry there and this report shows at the top); the title is drawn above.
+    std::string desc = svg ? svg_element_text(*svg, "desc") : std::string();
+    const std::string tail = std::string(" ") + k_caution;
+    if (desc.size() >= tail.size() &&
+        desc.compare(desc.size() - tail.size(), tail.size(), tail) == 0)
+        desc.erase(desc.size() - tail.size());
+    if (desc == k_caution) desc.clear();
+    o += fmt::format("<figcaption><strong>Figure {}.</strong> ", n);
+    if (!svg) {
+        const std::string title = figure_title(f);
+        if (!title.empty()) o += esc(title) + ". ";
+    }
+    if (!desc.empty()) o += esc(desc) + " ";
+    o += "(<code>" + esc(file) + "</code>)</figcaption>\n</figure>\n";
+}
+
+/// The figures of one section, without a heading.
+void figures_of(std::string& o, const std::vector<Figure>& figures, const std::string& section) {
+    const auto numbers = figure_numbers(figures);
+    for (std::size_t i = 0; i < figures.size(); ++i)
+        if (figures[i].section == section) figure_html(o, figures[i], numbers[i]);
+}
+
+bool has_section(const std::vector<Figure>& figures, const std::string& section) {
+    return std::any_of(figures.begin(), figures.end(),
+                       [&](const Figure& f) { return f.section == section; });
+}
+
+/// Rows shown of a long diagnostic or life-history table (all are in its CSV file).
+constexpr std::size_t k_max_shown_rows = 150;
 
 void html_table(std::string& o, const TidyTable& t,
                 const std::vector<const std::vector<Cell>*>& rows) {
@@ -293,25 +415,79 @@ void html_table(std::string& o, const TidyTable& t,
     o += "</tbody>\n</table>\n";
 }
 
-void tables_section(std::string& o, const std::vector<TidyTable>& tables) {
-    std::string body;
+/// One table with its heading, description and file name; at most `max_rows` rows shown.
+std::string table_block(const TidyTable& t, const std::vector<const std::vector<Cell>*>& rows,
+                        const std::string& note, std::size_t max_rows) {
+    std::string body = "<section id=\"table-" + esc(t.name) + "\">\n<h3>" + esc(t.name) + "</h3>\n";
+    std::string shown_note;
+    std::vector<const std::vector<Cell>*> shown_rows = rows;
+    if (shown_rows.size() > max_rows) {
+        shown_rows.resize(max_rows);
+        shown_note =
+            fmt::format(" The first {} of {} rows; all are in the file.", max_rows, rows.size());
+    }
+    body += "<p class=\"note\">" + esc(table_description(t.name)) + esc(note) + esc(shown_note) +
+            " File: <code>" + esc(t.name) + ".csv</code>.</p>\n";
+    html_table(body, t, shown_rows);
+    body += "</section>\n";
+    return body;
+}
+
+std::vector<const std::vector<Cell>*> all_rows(const TidyTable& t) {
+    std::vector<const std::vector<Cell>*> rows;
+    for (const auto& row : t.rows) rows.push_back(&row);
+    return rows;
+}
+
+/// Names of the tables of the life-history section: those starting with "life_", in the
+/// order given.
+std::vector<std::string> life_table_names(const std::vector<TidyTable>& tables) {
+    std::vector<std::string> out;
+    for (const auto& t : tables)
+        if (t.name.rfind("life_", 0) == 0 && !t.rows.empty()) out.push_back(t.name);
+    return out;
+}
+
+/// Tables of the diagnostics section, in this order, when present and not empty.
+const std::vector<std::string>& diagnostic_table_names() {
+    static const std::vector<std::string> names = {"mesh_check", "eviction", "reducibility",
+                                                   "diagnostics"};
+    return names;
+}
+
+bool any_table(const std::vector<TidyTable>& tables, const std::vector<std::string>& names) {
+    for (const auto& n : names)
+        if (const TidyTable* t = find_table(tables, n); t && !t->rows.empty()) return true;
+    return false;
+}
+
+/// The main tables: their names in the order shown (when present and not empty).
+std::vector<std::string> main_tables_shown(const std::vector<TidyTable>& tables) {
+    std::vector<std::string> out;
     for (const auto& name : report_table_names()) {
         const TidyTable* t = find_table(tables, name);
         if (!t || t->rows.empty()) continue;
+        if (name == "scenarios" && find_column(*t, "kernel") &&
+            rows_where(*t, "kernel", "pooled").empty())
+            continue;
+        out.push_back(name);
+    }
+    return out;
+}
+
+void tables_section(std::string& o, const std::vector<TidyTable>& tables) {
+    std::string body;
+    for (const auto& name : main_tables_shown(tables)) {
+        const TidyTable* t = find_table(tables, name);
         std::vector<const std::vector<Cell>*> rows;
         std::string note;
         if (name == "scenarios" && find_column(*t, "kernel")) {
             rows = rows_where(*t, "kernel", "pooled");
-            if (rows.empty()) continue;
             note = " Rows of the pooled kernel; every census-year kernel is in the file.";
         } else {
-            for (const auto& row : t->rows) rows.push_back(&row);
+            rows = all_rows(*t);
         }
-        body += "<section id=\"table-" + esc(name) + "\">\n<h3>" + esc(name) + "</h3>\n";
-        body += "<p class=\"note\">" + esc(table_description(name)) + esc(note) + " File: <code>" +
-                esc(name) + ".csv</code>.</p>\n";
-        html_table(body, *t, rows);
-        body += "</section>\n";
+        body += table_block(*t, rows, note, rows.size());
     }
     if (body.empty()) return;
     o += "<section id=\"tables\">\n<h2>Tables</h2>\n";
@@ -323,7 +499,40 @@ void tables_section(std::string& o, const std::vector<TidyTable>& tables) {
     o += "</section>\n";
 }
 
-void assumptions_and_warnings(std::string& o, const RunInfo& info) {
+void life_history_section(std::string& o, const std::vector<TidyTable>& tables) {
+    const auto names = life_table_names(tables);
+    if (names.empty()) return;
+    o += "<section id=\"life-history\">\n<h2>Life history</h2>\n";
+    for (const auto& n : names) {
+        const TidyTable* t = find_table(tables, n);
+        o += table_block(*t, all_rows(*t), "", k_max_shown_rows);
+    }
+    o += "</section>\n";
+}
+
+void diagnostics_section(std::string& o, const std::vector<TidyTable>& tables,
+                         const std::vector<Figure>& figures) {
+    if (!has_section(figures, "Diagnostics") && !any_table(tables, diagnostic_table_names()))
+        return;
+    o += "<section id=\"diagnostics\">\n<h2>Diagnostics</h2>\n<p class=\"note\">Checks of the "
+         "numerical model: mesh convergence, probability mass evicted from the mesh, and "
+         "kernels that are reducible. The warnings they raise are listed at the top.</p>\n";
+    figures_of(o, figures, "Diagnostics");
+    for (const auto& n : diagnostic_table_names()) {
+        const TidyTable* t = find_table(tables, n);
+        if (t && !t->rows.empty()) o += table_block(*t, all_rows(*t), "", k_max_shown_rows);
+    }
+    o += "</section>\n";
+}
+
+void warnings_section(std::string& o, const RunInfo& info) {
+    if (info.warnings.empty()) return;
+    o += "<section class=\"warnings\" id=\"warnings\">\n<h2>Warnings</h2>\n<ul>\n";
+    for (const auto& w : info.warnings) o += "<li>" + esc(w) + "</li>\n";
+    o += "</ul>\n</section>\n";
+}
+
+void assumptions_section(std::string& o, const RunInfo& info) {
     o += "<section id=\"assumptions\">\n<h2>Assumptions</h2>\n";
     if (info.assumptions.empty()) {
         o += "<p>None stated.</p>\n";
@@ -332,15 +541,60 @@ void assumptions_and_warnings(std::string& o, const RunInfo& info) {
         for (const auto& a : info.assumptions) o += "<li>" + esc(a) + "</li>\n";
         o += "</ol>\n";
     }
-    o += "</section>\n<section id=\"warnings\">\n<h2>Warnings</h2>\n";
-    if (info.warnings.empty()) {
-        o += "<p>None.</p>\n";
-    } else {
-        o += "<ul>\n";
-        for (const auto& w : info.warnings) o += "<li>" + esc(w) + "</li>\n";
-        o += "</ul>\n";
-    }
     o += "</section>\n";
+}
+
+/// The table of contents: every section present, the figures under theirs, the tables under
+/// theirs.
+void contents(std::string& o, const std::vector<TidyTable>& tables, const RunInfo& info,
+              const std::vector<Figure>& figures, bool key_results_shown) {
+    const auto numbers = figure_numbers(figures);
+    auto link = [](const std::string& id, const std::string& text) {
+        return "<a href=\"#" + esc(id) + "\">" + esc(text) + "</a>";
+    };
+    auto figure_list = [&](const std::string& section) {
+        std::string l;
+        for (std::size_t i = 0; i < figures.size(); ++i) {
+            if (figures[i].section != section) continue;
+            std::string title = figure_title(figures[i]);
+            if (title.empty()) title = figures[i].name;
+            l += "<li>" +
+                 link("figure-" + figures[i].name, fmt::format("Figure {}. ", numbers[i]) + title) +
+                 "</li>\n";
+        }
+        return l.empty() ? l : "<ol>\n" + l + "</ol>\n";
+    };
+    auto table_list = [&](const std::vector<std::string>& names) {
+        std::string l;
+        for (const auto& n : names) l += "<li>" + link("table-" + n, n) + "</li>\n";
+        return l.empty() ? l : "<ol>\n" + l + "</ol>\n";
+    };
+    o += "<nav id=\"contents\">\n<h2>Contents</h2>\n<ol>\n";
+    o += "<li>" + link("caution", "Caution") + "</li>\n";
+    if (!info.warnings.empty())
+        o += "<li>" + link("warnings", fmt::format("Warnings ({})", info.warnings.size())) +
+             "</li>\n";
+    if (key_results_shown) o += "<li>" + link("key-results", "Key results") + "</li>\n";
+    for (const auto& s : figure_sections(figures)) {
+        if (s.key == "Diagnostics" || !has_section(figures, s.key)) continue;
+        o += "<li>" + link(s.id, s.heading) + "\n" + figure_list(s.key) + "</li>\n";
+    }
+    const auto main = main_tables_shown(tables);
+    if (!main.empty()) o += "<li>" + link("tables", "Tables") + "\n" + table_list(main) + "</li>\n";
+    const auto life = life_table_names(tables);
+    if (!life.empty())
+        o += "<li>" + link("life-history", "Life history") + "\n" + table_list(life) + "</li>\n";
+    if (has_section(figures, "Diagnostics") || any_table(tables, diagnostic_table_names())) {
+        std::vector<std::string> diag;
+        for (const auto& n : diagnostic_table_names())
+            if (const TidyTable* t = find_table(tables, n); t && !t->rows.empty())
+                diag.push_back(n);
+        o += "<li>" + link("diagnostics", "Diagnostics") + "\n" + figure_list("Diagnostics") +
+             table_list(diag) + "</li>\n";
+    }
+    o += "<li>" + link("assumptions", "Assumptions") + "</li>\n";
+    o += "<li>" + link("files", "Files of this folder") + "</li>\n";
+    o += "</ol>\n</nav>\n";
 }
 
 void files_section(std::string& o, const std::vector<TidyTable>& tables,
@@ -425,10 +679,21 @@ std::string render_html_report(const std::vector<TidyTable>& tables, const RunIn
          "</title>\n<style>\n" + k_style + "</style>\n</head>\n<body>\n";
     header(o, info);
     caution(o);
-    key_results(o, tables);
-    figures_section(o, figures);
+    warnings_section(o, info);
+    std::string key;
+    key_results(key, tables);
+    contents(o, tables, info, figures, !key.empty());
+    o += key;
+    for (const auto& s : figure_sections(figures)) {
+        if (s.key == "Diagnostics" || !has_section(figures, s.key)) continue;
+        o += "<section id=\"" + esc(s.id) + "\">\n<h2>" + esc(s.heading) + "</h2>\n";
+        figures_of(o, figures, s.key);
+        o += "</section>\n";
+    }
     tables_section(o, tables);
-    assumptions_and_warnings(o, info);
+    life_history_section(o, tables);
+    diagnostics_section(o, tables, figures);
+    assumptions_section(o, info);
     files_section(o, tables, figures);
     o += "<footer><p class=\"note\">Written by safesite " + esc(version()) +
          ". Re-render with <code>safesite report DIR</code>.</p></footer>\n</body>\n</html>\n";

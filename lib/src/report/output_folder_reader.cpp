@@ -4,6 +4,7 @@
 #include <cstdint>
 #include <fstream>
 #include <limits>
+#include <map>
 #include <optional>
 #include <set>
 #include <sstream>
@@ -190,7 +191,9 @@ OutputFolder read_output_folder(const fs::path& dir) {
         }
         std::sort(stems.begin(), stems.end());
         std::vector<std::string> order;
+        std::map<std::string, std::string> section;  // report section of the known figures
         for (const auto& f : all_figures(out.tables)) {
+            section[f.name] = f.section;
             if (std::find(stems.begin(), stems.end(), f.name) != stems.end())
                 order.push_back(f.name);
         }
@@ -200,7 +203,9 @@ OutputFolder read_output_folder(const fs::path& dir) {
             const fs::path p = fig_dir / (name + ".svg");
             const auto svg = slurp(p);
             if (!svg) throw InputError({p.string(), 0, 0, ""}, "cannot read the figure");
-            out.figures.push_back({name, *svg});
+            const auto known = section.find(name);
+            out.figures.push_back(
+                {name, *svg, known == section.end() ? std::string() : known->second});
         }
     }
     return out;

@@ -1,10 +1,13 @@
 #include "safesite/report/svg_chart.hpp"
 
 #include <algorithm>
+#include <array>
 #include <cassert>
 #include <cmath>
 #include <cstdlib>
+#include <initializer_list>
 #include <map>
+#include <optional>
 #include <string>
 #include <string_view>
 #include <utility>
@@ -15,16 +18,17 @@ namespace safesite::report {
 
 namespace {
 
-// Series colours, chosen for safesite. Two dark and two light tones; each dark/light pair
-// differs along the blue–yellow opponent axis, which the common colour-vision deficiencies
-// (protanopia, deuteranopia) keep, and dark vs light (CIE L* about 34 vs 67, computed from
-// the sRGB values) keeps the series apart in greyscale print and for tritanopes. Series also
-// differ by marker shape (and lines by dash where it matters), so colour is never the only cue.
+// Series colours: see series_palette() in svg_chart.hpp for how they were chosen. L* (CIE,
+// D65) of each in brackets.
 constexpr const char* k_palette[] = {
-    "#1c4f8c",  // deep blue, L* 33.4
-    "#e0952b",  // amber,     L* 67.7
-    "#6aa6d8",  // sky,       L* 66.0
-    "#8a3b12",  // rust,      L* 35.2
+    "#4411ff",  // ultramarine (L* 35.7)
+    "#999900",  // olive       (L* 61.3)
+    "#770033",  // maroon      (L* 24.2)
+    "#009999",  // teal        (L* 57.2)
+    "#bb1122",  // crimson     (L* 39.7)
+    "#8877ff",  // periwinkle  (L* 57.7)
+    "#770077",  // plum        (L* 27.4)
+    "#ee3388",  // rose        (L* 54.4)
 };
 constexpr std::size_t k_palette_size = sizeof(k_palette) / sizeof(k_palette[0]);
 constexpr const char* k_ink = "#222222";        // text and axes
@@ -39,6 +43,10 @@ const char* dash_attribute(Dash dash) {
         case Dash::dashed: return " stroke-dasharray=\"7 4\"";
         case Dash::dotted: return " stroke-dasharray=\"2 3\"";
         case Dash::dash_dot: return " stroke-dasharray=\"8 3 2 3\"";
+        case Dash::long_dash:
+            return " stroke-dasharray=\"14 5\"";
+        case Dash::dash_dot_dot:
+            return " stroke-dasharray=\"9 3 2 3 2 3\"";
         case Dash::solid: break;
     }
     return "";
@@ -56,58 +64,119 @@ std::size_t text_length(const std::string& s) {
     return n;
 }
 
-/// Estimated width of text in a sans-serif font: 0.56 em per character on average
-/// (common practice for layout without font metrics; a little generous for digits).
-double text_width(const std::string& s, double font_size) {
-    return 0.56 * font_size * static_cast<double>(text_length(s));
-}
-
-/// Shorten text to at most `max` code points, ending in "…" when cut.
-std::string shorten(const std::string& s, std::size_t max) {
-    if (text_length(s) <= max) return s;
-    std::string out;
-    std::size_t n = 0;
+/// Byte offsets of the code points of UTF-8 text, and its size at the end.
+std::vector<std::size_t> code_point_starts(const std::string& s) {
+    std::vector<std::size_t> starts;
     for (std::size_t i = 0; i < s.size(); ++i) {
-        const auto c = static_cast<unsigned char>(s[i]);
-        if ((c & 0xC0u) != 0x80u) {
-            if (n == max - 1) break;
-            ++n;
-        }
-        out += s[i];
+        if ((static_cast<unsigned char>(s[i]) & 0xC0u) != 0x80u) starts.push_back(i);
     }
-    return out + "\u2026";
+    starts.push_back(s.size());
+    return starts;
 }
 
-/// Greedy word wrap into lines of at most `width` code points (a longer word stays whole).
-std::vector<std::string> wrap(const std::string& text, std::size_t width) {
-    std::vector<std::string> lines;
-    std::string line;
-    std::size_t start = 0;
-    while (start <= text.size()) {
-        std::size_t end = text.find(' ', start);
-        if (end == std::string::npos) end = text.size();
-        const std::string word = text.substr(start, end - start);
-        if (!word.empty()) {
-            if (!line.empty() && text_length(line) + 1 + text_length(word) > width) {
-                lines.push_back(line);
-                line.clear();
+double text_width(const std::string& s, double font_size) {
+    return estimated_text_width(s, font_size);
+}
+
+/// Widest line of several, in px.
+double widest(const std::vector<std::string>& lines, double font_size) {
+    double w = 0.0;
+    for (const auto& l : lines) w = std::max(w, text_width(l, font_size));
+    return w;
+}
+
+/// An axis-aligned box in px (x0 <= x1, y0 <= y1).
+struct Box {
+    double x0 = 0.0, y0 = 0.0, x1 = 0.0, y1 = 0.0;
+};
+
+bool overlaps(const Box& a, const Box& b) {
+    return a.x0 < b.x1 && b.x0 < a.x1 && a.y0 < b.y1 && b.y0 < a.y1;
+}
+
+bool inside(const Box& inner, const Box& outer) {
+    return inner.x0 >= outer.x0 && inner.x1 <= outer.x1 && inner.y0 >= outer.y0 &&
+           inner.y1 <= outer.y1;
+}
+
+/// Whether the segment (x0, y0)–(x1, y1) meets the box (Liang–Barsky clipping).
+bool segment_hits(const Box& b, double x0, double y0, double x1, double y1) {
+    double t0 = 0.0, t1 = 1.0;
+    const double dx = x1 - x0, dy = y1 - y0;
+    const double p[4] = {-dx, dx, -dy, dy};
+    const double q[4] = {x0 - b.x0, b.x1 - x0, y0 - b.y0, b.y1 - y0};
+    for (int k = 0; k < 4; ++k) {
+        if (p[k] == 0.0) {
+            if (q[k] < 0.0) return false;
+        } else {
+            const double t = q[k] / p[k];
+            if (p[k] < 0.0) {
+                t0 = std::max(t0, t);
+            } else {
+                t1 = std::min(t1, t);
             }
-            if (!line.empty()) line += ' ';
-            line += word;
+            if (t0 > t1) return false;
         }
-        start = end + 1;
     }
-    if (!line.empty()) lines.push_back(line);
-    return lines;
+    return true;
+}
+
+/// What labels must not cover: boxes (points, bars, whiskers, other labels) and segments
+/// (lines), in px.
+struct Obstacles {
+    std::vector<Box> boxes;
+    std::vector<std::array<double, 4>> segments;
+    bool hit(const Box& b) const {
+        for (const auto& o : boxes)
+            if (overlaps(b, o)) return true;
+        for (const auto& s : segments)
+            if (segment_hits(b, s[0], s[1], s[2], s[3])) return true;
+        return false;
+    }
+};
+
+/// CIE L* of an sRGB colour "#rrggbb" (D65; IEC 61966-2-1 decoding).
+double lightness(const char* hex) {
+    auto channel = [&](int at) {
+        const double c = std::stoi(std::string(hex + at, 2), nullptr, 16) / 255.0;
+        return c <= 0.04045 ? c / 12.92 : std::pow((c + 0.055) / 1.055, 2.4);
+    };
+    const double y = 0.2126 * channel(1) + 0.7152 * channel(3) + 0.0722 * channel(5);
+    const double f = y > 216.0 / 24389.0 ? std::cbrt(y) : (24389.0 / 27.0 * y + 16.0) / 116.0;
+    return 116.0 * f - 16.0;
+}
+
+/// `<text>` content of one or several lines: the first at the element's y, the next ones in
+/// `<tspan>`s at x, one line height further down each.
+std::string text_lines(const std::vector<std::string>& lines, double x, double line_height) {
+    std::string o;
+    for (std::size_t i = 0; i < lines.size(); ++i) {
+        if (i == 0) {
+            o += xml_escape(lines[i]);
+        } else {
+            o += fmt::format("<tspan x=\"{}\" dy=\"{}\">{}</tspan>", px(x), px(line_height),
+                             xml_escape(lines[i]));
+        }
+    }
+    return o;
 }
 
 bool finite(double v) { return std::isfinite(v); }
 
-/// A marker centred at (x, y): circle, square, triangle or diamond by series index, about
-/// 9 px across; `extra` holds further attributes (class, outline).
+/// A marker centred at (x, y), about 10 px across, of shape series_marker(series): circle,
+/// square, triangle up, diamond, triangle down, plus, star, cross; `extra` holds further
+/// attributes (class, outline).
 std::string marker(std::size_t series, double x, double y, const char* colour,
                    const char* extra) {
-    switch (series % 4) {
+    auto polygon = [&](std::initializer_list<std::pair<double, double>> pts) {
+        std::string points;
+        for (const auto& [dx, dy] : pts) {
+            if (!points.empty()) points += ' ';
+            points += px(x + dx) + "," + px(y + dy);
+        }
+        return fmt::format("<polygon{} points=\"{}\" fill=\"{}\"/>\n", extra, points, colour);
+    };
+    switch (series_marker(series)) {
         case 0:
             return fmt::format("<circle{} cx=\"{}\" cy=\"{}\" r=\"4.5\" fill=\"{}\"/>\n", extra,
                                px(x), px(y), colour);
@@ -115,13 +184,48 @@ std::string marker(std::size_t series, double x, double y, const char* colour,
             return fmt::format("<rect{} x=\"{}\" y=\"{}\" width=\"8\" height=\"8\" fill=\"{}\"/>\n",
                                extra, px(x - 4.0), px(y - 4.0), colour);
         case 2:
-            return fmt::format("<polygon{} points=\"{},{} {},{} {},{}\" fill=\"{}\"/>\n", extra,
-                               px(x), px(y - 5.5), px(x + 5.0), px(y + 3.5), px(x - 5.0),
-                               px(y + 3.5), colour);
-        default:
-            return fmt::format("<polygon{} points=\"{},{} {},{} {},{} {},{}\" fill=\"{}\"/>\n",
-                               extra, px(x), px(y - 5.5), px(x + 5.5), px(y), px(x), px(y + 5.5),
-                               px(x - 5.5), px(y), colour);
+            return polygon({{0.0, -5.5}, {5.0, 3.5}, {-5.0, 3.5}});
+        case 3:
+            return polygon({{0.0, -5.5}, {5.5, 0.0}, {0.0, 5.5}, {-5.5, 0.0}});
+        case 4:
+            return polygon({{0.0, 5.5}, {5.0, -3.5}, {-5.0, -3.5}});
+        case 5:
+            return polygon({{-1.8, -5.5},
+                            {1.8, -5.5},
+                            {1.8, -1.8},
+                            {5.5, -1.8},
+                            {5.5, 1.8},
+                            {1.8, 1.8},
+                            {1.8, 5.5},
+                            {-1.8, 5.5},
+                            {-1.8, 1.8},
+                            {-5.5, 1.8},
+                            {-5.5, -1.8},
+                            {-1.8, -1.8}});
+        case 6:  // five-pointed star, outer radius 6, inner 2.6
+            return polygon({{0.0, -6.0},
+                            {1.53, -2.1},
+                            {5.71, -1.85},
+                            {2.47, 0.8},
+                            {3.53, 4.85},
+                            {0.0, 2.6},
+                            {-3.53, 4.85},
+                            {-2.47, 0.8},
+                            {-5.71, -1.85},
+                            {-1.53, -2.1}});
+        default:  // the plus turned by 45°
+            return polygon({{-3.9, -6.4},
+                            {0.0, -2.5},
+                            {3.9, -6.4},
+                            {6.4, -3.9},
+                            {2.5, 0.0},
+                            {6.4, 3.9},
+                            {3.9, 6.4},
+                            {0.0, 2.5},
+                            {-3.9, 6.4},
+                            {-6.4, 3.9},
+                            {-2.5, 0.0},
+                            {-6.4, -3.9}});
     }
 }
 
@@ -135,6 +239,76 @@ struct Scale {
 };
 
 }  // namespace
+
+const std::vector<std::string>& series_palette() {
+    static const std::vector<std::string> palette(std::begin(k_palette), std::end(k_palette));
+    return palette;
+}
+
+std::size_t series_marker(std::size_t series) {
+    return (series + series / k_palette_size) % k_marker_shapes;
+}
+
+Dash series_dash(std::size_t i) {
+    constexpr Dash k_order[] = {Dash::solid,    Dash::dashed,    Dash::dotted,
+                                Dash::dash_dot, Dash::long_dash, Dash::dash_dot_dot};
+    return k_order[i % (sizeof(k_order) / sizeof(k_order[0]))];
+}
+
+double estimated_text_width(const std::string& text, double font_size) {
+    return 0.56 * font_size * static_cast<double>(text_length(text));
+}
+
+std::vector<std::string> wrap_text(const std::string& text, std::size_t width) {
+    assert(width >= 1);
+    width = std::max<std::size_t>(width, 1);
+    // Pieces that may not be broken further except by force: words split after '-', '/', '_'.
+    struct Piece {
+        std::string text;
+        bool space_before = false;
+    };
+    std::vector<Piece> pieces;
+    bool space = false;
+    std::string cur;
+    auto flush = [&](bool next_space) {
+        if (!cur.empty()) {
+            pieces.push_back({cur, space});
+            cur.clear();
+            space = next_space;
+        } else if (next_space && !pieces.empty()) {
+            space = true;
+        }
+    };
+    for (char c : text) {
+        if (c == ' ') {
+            flush(true);
+        } else {
+            cur += c;
+            if (c == '-' || c == '/' || c == '_') flush(false);
+        }
+    }
+    flush(false);
+
+    std::vector<std::string> lines;
+    std::string line;
+    for (const auto& p : pieces) {
+        const std::size_t sep = (p.space_before && !line.empty()) ? 1 : 0;
+        if (!line.empty() && text_length(line) + sep + text_length(p.text) > width) {
+            lines.push_back(line);
+            line.clear();
+        }
+        if (!line.empty() && p.space_before) line += ' ';
+        line += p.text;
+        // A piece longer than a line: cut it at code points.
+        while (text_length(line) > width) {
+            const auto starts = code_point_starts(line);
+            lines.push_back(line.substr(0, starts[width]));
+            line.erase(0, starts[width]);
+        }
+    }
+    if (!line.empty()) lines.push_back(line);
+    return lines;
+}
 
 double nice_number(double x, bool round) {
     if (!(x > 0.0) || !std::isfinite(x)) return 0.0;
@@ -350,7 +524,9 @@ std::string SvgChart::to_svg() const {
     const double fs = L.font_size;
     const double title_fs = 1.3 * fs;
     const double caption_fs = 0.95 * fs;
-    constexpr std::size_t k_max_label = 36;  // code points of a category label
+    const double line_h = 1.2 * fs;             // line height of wrapped labels
+    const double value_fs = 0.85 * fs;          // bar value labels
+    constexpr std::size_t k_legend_chars = 26;  // code points a legend line
 
     // 1. Scales: nice ticks for linear axes, bands for categorical ones.
     auto resolve = [&](const Axis& a) {
@@ -370,56 +546,243 @@ std::string SvgChart::to_svg() const {
     Scale sx = resolve(m_x);
     Scale sy = resolve(m_y);
 
-    // 2. Margins: category labels of a y axis, the legend, rotated x labels, the caption.
-    double left = L.margin_left;
+    // 2. Text blocks: the title wrapped to the canvas, y category labels wrapped so that
+    // they fit their band, legend labels wrapped at k_legend_chars.
+    const auto title_chars =
+        static_cast<std::size_t>(std::max((L.width - 32.0) / (0.56 * title_fs), 10.0));
+    std::vector<std::string> title = wrap_text(m_title, title_chars);
+    if (title.empty()) title.push_back("");
+    const double title_extra = 1.25 * title_fs * static_cast<double>(title.size() - 1);
+    const double plot_top = L.margin_top + title_extra;
+    const double plot_h = std::max(L.height - L.margin_top - L.margin_bottom, 40.0);
+    const double plot_bottom = plot_top + plot_h;
+
+    std::vector<std::vector<std::string>> y_cats;
     if (m_y.categorical) {
-        double w = 0.0;
-        for (const auto& c : m_y.categories) w = std::max(w, text_width(shorten(c, k_max_label), fs));
-        left = std::max(left, w + 20.0 + (m_y.label.empty() ? 0.0 : 1.6 * fs));
+        const double band =
+            plot_h / static_cast<double>(std::max<std::size_t>(m_y.categories.size(), 1));
+        for (std::size_t chars = 24;; chars += 8) {
+            y_cats.clear();
+            std::size_t most = 1;
+            for (const auto& c : m_y.categories) {
+                y_cats.push_back(wrap_text(c, chars));
+                most = std::max(most, y_cats.back().size());
+            }
+            if (static_cast<double>(most) * line_h <= 0.95 * band || chars >= 80) break;
+        }
     }
-    double legend_width = 0.0;
     std::vector<std::size_t> legend;
+    std::vector<std::vector<std::string>> legend_text;
+    double legend_width = 0.0;
     for (std::size_t i = 0; i < m_series.size(); ++i) {
         if (m_series[i].legend.empty()) continue;
         legend.push_back(i);
-        legend_width = std::max(legend_width,
-                                text_width(shorten(m_series[i].legend, k_max_label), fs) + 40.0);
+        legend_text.push_back(wrap_text(m_series[i].legend, k_legend_chars));
+        legend_width = std::max(legend_width, widest(legend_text.back(), fs) + 40.0);
     }
-    const double right = L.margin_right + (legend.empty() ? 0.0 : legend_width + 8.0);
-    const double plot_w = std::max(L.width - left - right, 40.0);
-    bool rotate_x = false;
-    double bottom = L.margin_bottom;
-    if (m_x.categorical && !m_x.categories.empty()) {
+
+    // 3. Margins. Left: y category labels. Right: the legend, and a column for reference
+    // labels that found no free place in the plot (decided in step 4, which may widen it).
+    double left = L.margin_left;
+    if (m_y.categorical) {
         double w = 0.0;
-        for (const auto& c : m_x.categories) w = std::max(w, text_width(shorten(c, k_max_label), fs));
-        const double band = plot_w / static_cast<double>(m_x.categories.size());
-        if (w > 0.9 * band) {
-            rotate_x = true;
-            bottom += 0.7 * w;  // sin 40° ≈ 0.64, plus room
-        }
+        for (const auto& lines : y_cats) w = std::max(w, widest(lines, fs));
+        left = std::max(left, w + 20.0 + (m_y.label.empty() ? 0.0 : 1.6 * fs));
     }
     const double plot_left = left;
-    const double plot_top = L.margin_top;
-    const double plot_h = std::max(L.height - L.margin_top - L.margin_bottom, 40.0);
-    const double plot_bottom = plot_top + plot_h;
-    const double plot_right = plot_left + plot_w;
-    sx.p0 = plot_left;
-    sx.p1 = plot_right;
-    if (sy.categorical) {  // label 0 at the top
-        sy.p0 = plot_top;
-        sy.p1 = plot_bottom;
-    } else {
-        sy.p0 = plot_bottom;
-        sy.p1 = plot_top;
+
+    struct Placed {
+        std::size_t mark = 0;
+        Box box;
+        double x = 0.0, y = 0.0;  // text anchor point (start anchor, baseline)
+    };
+    struct Geometry {
+        double plot_right = 0.0, plot_w = 0.0;
+        std::vector<std::vector<std::string>> x_cats;
+        double bottom = 0.0;
+        Obstacles obstacles;
+        std::vector<Placed> labels;  // reference labels
+        bool needs_column = false;   // a y reference label found no free place
+    };
+    double ref_column = 0.0;  // width reserved right of the plot for reference labels
+    auto lay_out = [&](double reserve) {
+        Geometry g;
+        const double right = L.margin_right + (legend.empty() ? 0.0 : legend_width + 8.0) + reserve;
+        g.plot_w = std::max(L.width - left - right, 40.0);
+        g.plot_right = plot_left + g.plot_w;
+        sx.p0 = plot_left;
+        sx.p1 = g.plot_right;
+        if (sy.categorical) {  // label 0 at the top
+            sy.p0 = plot_top;
+            sy.p1 = plot_bottom;
+        } else {
+            sy.p0 = plot_bottom;
+            sy.p1 = plot_top;
+        }
+        // x category labels wrapped to their band (4 code points at least).
+        std::size_t x_lines = 1;
+        if (m_x.categorical && !m_x.categories.empty()) {
+            const double band = g.plot_w / static_cast<double>(m_x.categories.size());
+            const auto chars = static_cast<std::size_t>(std::max(0.92 * band / (0.56 * fs), 4.0));
+            for (const auto& c : m_x.categories) {
+                g.x_cats.push_back(wrap_text(c, chars));
+                x_lines = std::max(x_lines, g.x_cats.back().size());
+            }
+        }
+        g.bottom = L.margin_bottom + line_h * static_cast<double>(x_lines - 1);
+
+        // What a label must not cover, in px.
+        for (const auto& m : m_marks) {
+            switch (m.kind) {
+                case Mark::Kind::point: {
+                    const double x = sx(m.x[0]), y = sy(m.y[0]);
+                    g.obstacles.boxes.push_back({x - 7.0, y - 7.0, x + 7.0, y + 7.0});
+                    break;
+                }
+                case Mark::Kind::line:
+                    for (std::size_t i = 1; i < m.x.size(); ++i)
+                        g.obstacles.segments.push_back(
+                            {sx(m.x[i - 1]), sy(m.y[i - 1]), sx(m.x[i]), sy(m.y[i])});
+                    break;
+                case Mark::Kind::whisker: {
+                    const double x0 = sx(m.x[0]), x1 = sx(m.x[1]);
+                    const double y0 = sy(m.y[0]), y1 = sy(m.y[1]);
+                    g.obstacles.boxes.push_back({std::min(x0, x1) - 6.0, std::min(y0, y1) - 6.0,
+                                                 std::max(x0, x1) + 6.0, std::max(y0, y1) + 6.0});
+                    break;
+                }
+                case Mark::Kind::bar: {
+                    const double band = std::fabs(sy(1.0) - sy(0.0));
+                    const double h = std::min(m.size * band, 40.0);
+                    const double xa = sx(m.x[0]), xb = sx(m.x[1]), y = sy(m.y[0]);
+                    double x0 = std::min(xa, xb), x1 = std::max(xa, xb);
+                    if (!m.label.empty()) {  // room for a value label outside the bar
+                        const double w = text_width(m.label, value_fs) + 6.0;
+                        if (xb >= xa)
+                            x1 += w;
+                        else
+                            x0 -= w;
+                    }
+                    g.obstacles.boxes.push_back({x0, y - h / 2.0 - 1.0, x1, y + h / 2.0 + 1.0});
+                    break;
+                }
+                case Mark::Kind::trace:
+                    for (std::size_t i = 1; i < m.x.size(); ++i)
+                        g.obstacles.segments.push_back(
+                            {sx(m.x[i - 1]), sy(m.y[i - 1]), sx(m.x[i]), sy(m.y[i])});
+                    break;
+                case Mark::Kind::dot: {
+                    const double x = sx(m.x[0]), y = sy(m.y[0]);
+                    g.obstacles.boxes.push_back({x - 3.0, y - 3.0, x + 3.0, y + 3.0});
+                    break;
+                }
+                case Mark::Kind::band:
+                case Mark::Kind::area:
+                case Mark::Kind::ref_x:
+                case Mark::Kind::ref_y:
+                    break;
+            }
+        }
+
+        // Reference labels: the first free place among candidates inside the plot; else
+        // above the plot (x references) or in the column right of it (y references).
+        const Box plot{plot_left + 1.0, plot_top + 1.0, g.plot_right - 1.0, plot_bottom - 1.0};
+        const Box canvas{1.0, 1.0, L.width - 1.0, plot_bottom + g.bottom};
+        for (std::size_t k = 0; k < m_marks.size(); ++k) {
+            const Mark& m = m_marks[k];
+            if ((m.kind != Mark::Kind::ref_x && m.kind != Mark::Kind::ref_y) || m.label.empty())
+                continue;
+            const double w = text_width(m.label, fs), a = 0.8 * fs, d = 0.25 * fs;
+            // (x of the text start, baseline y) candidates.
+            std::vector<std::pair<double, double>> tries;
+            if (m.kind == Mark::Kind::ref_x) {
+                const double x = sx(m.x[0]);
+                for (double yb :
+                     {plot_top + 4.0 + a, plot_bottom - 4.0 - d, plot_top + plot_h / 2.0}) {
+                    tries.emplace_back(x + 5.0, yb);
+                    tries.emplace_back(x - 5.0 - w, yb);
+                }
+            } else {
+                const double y = sy(m.y[0]);
+                for (double xs :
+                     {g.plot_right - 5.0 - w, plot_left + 5.0, plot_left + (g.plot_w - w) / 2.0}) {
+                    tries.emplace_back(xs, y - 4.0 - d);
+                    tries.emplace_back(xs, y + 4.0 + a);
+                }
+            }
+            auto box_of = [&](double xs, double yb) {
+                return Box{xs - 1.0, yb - a - 1.0, xs + w + 1.0, yb + d + 1.0};
+            };
+            auto is_free = [&](const Box& b) {
+                if (g.obstacles.hit(b)) return false;
+                for (const auto& p : g.labels)
+                    if (overlaps(b, p.box)) return false;
+                return true;
+            };
+            std::optional<Placed> place;
+            for (const auto& [xs, yb] : tries) {
+                const Box b = box_of(xs, yb);
+                if (inside(b, plot) && is_free(b)) {
+                    place = Placed{k, b, xs, yb};
+                    break;
+                }
+            }
+            if (!place && m.kind == Mark::Kind::ref_x) {
+                // Above the plot, centred on the line and kept on the canvas; further up
+                // when another label is there.
+                const double x = sx(m.x[0]);
+                const double xs = std::clamp(x - w / 2.0, canvas.x0 + 1.0, canvas.x1 - 1.0 - w);
+                double yb = plot_top - 5.0 - d;
+                Box b = box_of(xs, yb);
+                for (int up = 0; up < 2 && !is_free(b); ++up) {
+                    yb -= fs + 2.0;
+                    b = box_of(xs, yb);
+                }
+                place = Placed{k, b, xs, yb};
+            }
+            if (!place) {  // y reference: the column right of the plot
+                g.needs_column = true;
+                const double xs = g.plot_right + 6.0;
+                const double yb = sy(m.y[0]) + 0.3 * fs;
+                place = Placed{k, box_of(xs, yb), xs, yb};
+            }
+            g.labels.push_back(*place);
+        }
+        return g;
+    };
+    Geometry g = lay_out(0.0);
+    if (g.needs_column) {
+        for (const auto& p : g.labels)
+            if (m_marks[p.mark].kind == Mark::Kind::ref_y)
+                ref_column = std::max(ref_column, text_width(m_marks[p.mark].label, fs) + 12.0);
+        g = lay_out(ref_column);
     }
+    const double plot_right = g.plot_right;
+    const double plot_w = g.plot_w;
+    const double x_labels_bottom = plot_bottom + g.bottom;
+
+    // Legend entries: wrapped lines, one entry under the other, right of the plot.
+    std::vector<double> legend_y;
+    double legend_bottom = 0.0;
+    {
+        double y = plot_top + 8.0;
+        for (const auto& lines : legend_text) {
+            legend_y.push_back(y);
+            y += line_h * static_cast<double>(std::max<std::size_t>(lines.size(), 1)) + 0.5 * fs;
+        }
+        legend_bottom = y;
+    }
+    const double content_bottom = std::max(x_labels_bottom, legend_bottom + 4.0);
+
     const double caption_line = 1.35 * caption_fs;
     // Wrapped at 0.5 em a character, the average of running sans-serif text (common
     // practice); labels above are sized with a more generous 0.56 em.
     const auto caption_chars = static_cast<std::size_t>(
         std::max((L.width - 32.0) / (0.5 * caption_fs), 20.0));
-    const std::vector<std::string> caption = wrap(m_caption, caption_chars);
-    const double x_labels_bottom = plot_bottom + bottom;
-    const double height = x_labels_bottom + 8.0 + caption_line * static_cast<double>(caption.size());
+    const std::vector<std::string> caption = wrap_text(m_caption, caption_chars);
+    const double height =
+        content_bottom +
+        (caption.empty() ? 0.0 : 8.0 + caption_line * static_cast<double>(caption.size()));
 
     std::string o;
     o.reserve(16384);
@@ -434,7 +797,7 @@ std::string SvgChart::to_svg() const {
                      "fill=\"#ffffff\"/>\n",
                      px(L.width), px(height));
 
-    // 3. Grid lines at the ticks of the linear axes.
+    // 4. Grid lines at the ticks of the linear axes.
     o += fmt::format("<g class=\"grid\" stroke=\"{}\" stroke-width=\"1\">\n", k_grid);
     if (!sx.categorical) {
         for (double t : sx.ticks.values) {
@@ -450,7 +813,8 @@ std::string SvgChart::to_svg() const {
     }
     o += "</g>\n";
 
-    // 4. Marks, back to front: bands, reference lines, bars, lines, whiskers, points.
+    // 5. Marks, back to front: bands, reference lines, bars, lines, whiskers, points; the
+    // labels of the reference lines last, over everything.
     std::map<std::size_t, std::pair<std::string, double>> dots;  // per series: path, opacity
     auto draw = [&](Mark::Kind kind) {
         for (const auto& m : m_marks) {
@@ -467,27 +831,18 @@ std::string SvgChart::to_svg() const {
                 }
                 case Mark::Kind::ref_x: {
                     const double x = sx(m.x[0]);
-                    o += fmt::format("<line class=\"reference\" x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" "
-                                     "y2=\"{2}\" stroke=\"{3}\" stroke-width=\"1.2\"/>\n",
-                                     px(x), px(plot_top), px(plot_bottom), k_reference);
-                    if (!m.label.empty()) {
-                        o += fmt::format("<text x=\"{}\" y=\"{}\" fill=\"{}\">{}</text>\n",
-                                         px(x + 4.0), px(plot_top + fs), k_reference,
-                                         xml_escape(m.label));
-                    }
+                    o += fmt::format(
+                        "<line class=\"reference\" x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" "
+                        "y2=\"{2}\" stroke=\"{3}\" stroke-width=\"1.2\"/>\n",
+                        px(x), px(plot_top), px(plot_bottom), k_reference);
                     break;
                 }
                 case Mark::Kind::ref_y: {
                     const double y = sy(m.y[0]);
-                    o += fmt::format("<line class=\"reference\" x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" "
-                                     "y2=\"{1}\" stroke=\"{3}\" stroke-width=\"1.2\"/>\n",
-                                     px(plot_left), px(y), px(plot_right), k_reference);
-                    if (!m.label.empty()) {
-                        o += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"end\" "
-                                         "fill=\"{}\">{}</text>\n",
-                                         px(plot_right - 4.0), px(y - 4.0), k_reference,
-                                         xml_escape(m.label));
-                    }
+                    o += fmt::format(
+                        "<line class=\"reference\" x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" "
+                        "y2=\"{1}\" stroke=\"{3}\" stroke-width=\"1.2\"/>\n",
+                        px(plot_left), px(y), px(plot_right), k_reference);
                     break;
                 }
                 case Mark::Kind::bar: {
@@ -499,12 +854,19 @@ std::string SvgChart::to_svg() const {
                                      px(std::min(xa, xb)), px(y - h / 2.0),
                                      px(std::fabs(xb - xa)), px(h), c);
                     if (!m.label.empty()) {
+                        // Past the end of the bar when it fits in the plot, else inside the
+                        // bar at its end, in white on a dark bar.
                         const bool right = xb >= xa;
-                        o += fmt::format("<text class=\"value-label\" x=\"{}\" y=\"{}\" "
-                                         "font-size=\"{}\"{}>{}</text>\n",
-                                         px(xb + (right ? 4.0 : -4.0)), px(y + 0.3 * fs),
-                                         px(0.85 * fs), right ? "" : " text-anchor=\"end\"",
-                                         xml_escape(m.label));
+                        const double w = text_width(m.label, value_fs);
+                        const bool fits = right ? xb + 4.0 + w <= plot_right - 2.0
+                                                : xb - 4.0 - w >= plot_left + 2.0;
+                        const bool out_right = fits == right;
+                        const char* fill = fits ? k_ink : (lightness(c) < 55.0 ? "#ffffff" : k_ink);
+                        o += fmt::format(
+                            "<text class=\"value-label\" x=\"{}\" y=\"{}\" "
+                            "font-size=\"{}\" fill=\"{}\"{}>{}</text>\n",
+                            px(xb + (out_right ? 4.0 : -4.0)), px(y + 0.3 * fs), px(value_fs), fill,
+                            out_right ? "" : " text-anchor=\"end\"", xml_escape(m.label));
                     }
                     break;
                 }
@@ -577,8 +939,13 @@ std::string SvgChart::to_svg() const {
                              "stroke-opacity=\"{}\"/>\n",
                              d.first, colour_of(series), format_fixed(d.second, 2));
     }
+    for (const auto& p : g.labels) {
+        o +=
+            fmt::format("<text class=\"reference-label\" x=\"{}\" y=\"{}\" fill=\"{}\">{}</text>\n",
+                        px(p.x), px(p.y), k_reference, xml_escape(m_marks[p.mark].label));
+    }
 
-    // 5. Axes: a line along the left and bottom of the plot, outward ticks, tick labels.
+    // 6. Axes: a line along the left and bottom of the plot, outward ticks, tick labels.
     o += fmt::format("<g class=\"axes\" stroke=\"{}\" stroke-width=\"1\">\n", k_ink);
     o += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\"/>\n", px(plot_left),
                      px(plot_bottom), px(plot_right));
@@ -590,15 +957,9 @@ std::string SvgChart::to_svg() const {
             const double x = sx(static_cast<double>(i));
             o += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\"/>\n", px(x),
                              px(plot_bottom), px(plot_bottom + 5.0));
-            const std::string t = xml_escape(shorten(m_x.categories[i], k_max_label));
-            if (rotate_x) {
-                labels += fmt::format("<text x=\"{0}\" y=\"{1}\" text-anchor=\"end\" "
-                                      "transform=\"rotate(-40 {0} {1})\">{2}</text>\n",
-                                      px(x), px(plot_bottom + 9.0 + 0.3 * fs), t);
-            } else {
-                labels += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n",
-                                      px(x), px(plot_bottom + 9.0 + fs), t);
-            }
+            labels +=
+                fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n", px(x),
+                            px(plot_bottom + 9.0 + fs), text_lines(g.x_cats[i], x, line_h));
         }
     } else {
         for (double t : sx.ticks.values) {
@@ -615,9 +976,12 @@ std::string SvgChart::to_svg() const {
             const double y = sy(static_cast<double>(i));
             o += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\"/>\n",
                              px(plot_left - 5.0), px(y), px(plot_left));
+            // Lines centred on the band centre.
+            const double first =
+                y + 0.35 * fs - 0.5 * line_h * static_cast<double>(y_cats[i].size() - 1);
             labels += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"end\">{}</text>\n",
-                                  px(plot_left - 9.0), px(y + 0.35 * fs),
-                                  xml_escape(shorten(m_y.categories[i], k_max_label)));
+                                  px(plot_left - 9.0), px(first),
+                                  text_lines(y_cats[i], plot_left - 9.0, line_h));
         }
     } else {
         for (double t : sy.ticks.values) {
@@ -632,7 +996,7 @@ std::string SvgChart::to_svg() const {
     o += "</g>\n";
     o += "<g class=\"tick-labels\">\n" + labels + "</g>\n";
 
-    // 6. Axis labels: x centred under the tick labels, y rotated along the left edge.
+    // 7. Axis labels: x centred under the tick labels, y rotated along the left edge.
     if (!m_x.label.empty()) {
         o += fmt::format("<text class=\"axis-label\" x=\"{}\" y=\"{}\" text-anchor=\"middle\">"
                          "{}</text>\n",
@@ -647,14 +1011,15 @@ std::string SvgChart::to_svg() const {
                          px(x), px(y), xml_escape(m_y.label));
     }
 
-    // 7. Legend, to the right of the plot: a swatch and the label per series.
+    // 8. Legend, right of the plot (and of the column of reference labels): a swatch and the
+    // wrapped label per series.
     if (!legend.empty()) {
-        const double x = plot_right + 16.0;
+        const double x = plot_right + ref_column + 16.0;
         o += "<g class=\"legend\">\n";
         for (std::size_t k = 0; k < legend.size(); ++k) {
             const std::size_t i = legend[k];
             const char* c = colour_of(i);
-            const double y = plot_top + 8.0 + 1.7 * fs * static_cast<double>(k);
+            const double y = legend_y[k];
             const Swatch s = m_series[i].swatch;
             if (s == Swatch::bar) {
                 o += fmt::format("<rect x=\"{}\" y=\"{}\" width=\"22\" height=\"10\" "
@@ -670,22 +1035,27 @@ std::string SvgChart::to_svg() const {
             if (s == Swatch::point || s == Swatch::point_line) {
                 o += marker(i, x + 11.0, y, c, "");  // as the point marks, no class
             }
-            o += fmt::format("<text x=\"{}\" y=\"{}\">{}</text>\n", px(x + 30.0),
-                             px(y + 0.35 * fs), xml_escape(shorten(m_series[i].legend, k_max_label)));
+            o += fmt::format("<text x=\"{}\" y=\"{}\">{}</text>\n", px(x + 30.0), px(y + 0.35 * fs),
+                             text_lines(legend_text[k], x + 30.0, line_h));
         }
         o += "</g>\n";
     }
 
-    // 8. Title above the plot, caption lines under everything.
-    o += fmt::format("<text class=\"title\" x=\"16\" y=\"{}\" font-size=\"{}\" "
-                     "font-weight=\"bold\">{}</text>\n",
-                     px(16.0 + title_fs), px(title_fs), xml_escape(m_title));
-    for (std::size_t i = 0; i < caption.size(); ++i) {
-        o += fmt::format("<text class=\"caption\" x=\"16\" y=\"{}\" font-size=\"{}\" "
-                         "fill=\"#444444\">{}</text>\n",
-                         px(x_labels_bottom + 8.0 + caption_line * static_cast<double>(i + 1) -
-                            0.35 * caption_fs),
-                         px(caption_fs), xml_escape(caption[i]));
+    // 9. Title above the plot; caption lines under everything, as the last element.
+    o += fmt::format(
+        "<text class=\"title\" x=\"16\" y=\"{}\" font-size=\"{}\" "
+        "font-weight=\"bold\">{}</text>\n",
+        px(16.0 + title_fs), px(title_fs), text_lines(title, 16.0, 1.25 * title_fs));
+    if (!caption.empty()) {
+        o += fmt::format("<g class=\"caption\" transform=\"translate(0 {})\">\n",
+                         px(content_bottom));
+        for (std::size_t i = 0; i < caption.size(); ++i) {
+            o +=
+                fmt::format("<text x=\"16\" y=\"{}\" font-size=\"{}\" fill=\"#444444\">{}</text>\n",
+                            px(8.0 + caption_line * static_cast<double>(i + 1) - 0.35 * caption_fs),
+                            px(caption_fs), xml_escape(caption[i]));
+        }
+        o += "</g>\n";
     }
     o += "</svg>\n";
     return o;

@@ -6,6 +6,7 @@
 
 #include <cmath>
 #include <string>
+#include <vector>
 
 #include "safesite/error.hpp"
 #include "safesite/pipeline/bootstrap.hpp"
@@ -45,7 +46,17 @@ TEST_CASE("bootstrap: same seed, same intervals whatever the thread count", "[pi
     o.threads = 1;
     const auto one = pipeline::bootstrap(model, base, o);
     o.threads = 2;
+    // The progress callback: once per replicate, counts 1..B in order, whatever the threads.
+    // (Recorded here, checked after: Catch2 assertions are not for worker threads.)
+    std::vector<std::size_t> seen, totals;
+    o.progress = [&](std::size_t done, std::size_t total) {
+        seen.push_back(done);
+        totals.push_back(total);
+    };
     const auto two = pipeline::bootstrap(model, base, o);
+    CHECK(seen == std::vector<std::size_t>{1, 2, 3, 4, 5, 6});
+    CHECK(totals == std::vector<std::size_t>(6, 6));
+    o.progress = nullptr;
     REQUIRE(one.failed == 0);
     REQUIRE(one.values.size() == 6);
     REQUIRE(one.values == two.values);  // exact, replicate by replicate

@@ -310,11 +310,23 @@ TEST_CASE("retention_curves: one line per microsite of the focal seed type", "[r
     CHECK_FALSE(retention_curves_figure({retention_tables()[1]}));
 }
 
-TEST_CASE("arrival: one bar per finite fraction, a legend entry per scenario", "[report][unit]") {
+TEST_CASE("arrival: one bar per finite fraction, a legend entry per scenario, the seeds lost",
+          "[report][unit]") {
     const auto f = arrival_figure({arrival_table()});
     REQUIRE(f);
     check_document(f->svg);
-    CHECK(count(f->svg, "class=\"bar\"") == 5);  // 6 rows, one NaN
+    // 6 rows, one NaN; the lost group: baseline 1 − 0.6 − 0.25 − 0.15 = 0 (a bar of zero
+    // length, labelled 0), "all on gravel" has a missing fraction, so no lost bar.
+    CHECK(count(f->svg, "class=\"bar\"") == 6);
+    CHECK(f->svg.find(">lost (in no microsite)</text>") != std::string::npos);
+    CHECK(count(f->svg, "class=\"reference\"") == 1);  // the line above the lost group
+    // Lost share drawn with its value: 1 − 0.5 − 0.2 = 0.3 (hand-worked).
+    TidyTable half = arrival_table();
+    half.rows = {{text("baseline"), text("gravel"), number(0.5), text("given")},
+                 {text("baseline"), text("cushion"), number(0.2), text("given")}};
+    const auto g = arrival_figure({half});
+    REQUIRE(g);
+    CHECK(g->svg.find(">0.3</text>") != std::string::npos);
     CHECK(f->svg.find(">baseline</text>") != std::string::npos);
     CHECK(f->svg.find(">all on gravel</text>") != std::string::npos);
 }

@@ -17,6 +17,7 @@
 #include "safesite/report/html_report.hpp"
 #include "safesite/report/output_folder.hpp"
 #include "safesite/report/output_folder_reader.hpp"
+#include "safesite/report/svg_chart.hpp"
 #include "safesite/version.hpp"
 
 namespace fs = std::filesystem;
@@ -172,7 +173,16 @@ TEST_CASE("the HTML report is well formed, self-contained and reproducible", "[r
     CHECK(html.find("<script") == std::string::npos);
     CHECK(html.find("<link") == std::string::npos);
     CHECK(html.find("src=") == std::string::npos);
-    CHECK(html.find("href") == std::string::npos);
+    // Links only within the page: every href is "#id" of an element of the page.
+    for (std::size_t i = html.find("href=\""); i != std::string::npos;
+         i = html.find("href=\"", i + 1)) {
+        const std::size_t end = html.find('"', i + 6);
+        const std::string target = html.substr(i + 6, end - i - 6);
+        INFO(target);
+        REQUIRE(target.size() > 1);
+        CHECK(target[0] == '#');
+        CHECK(html.find("id=\"" + target.substr(1) + "\"") != std::string::npos);
+    }
     CHECK(html.find("url(") == std::string::npos);
     CHECK(html.find("@import") == std::string::npos);
     CHECK(count(html, "http") == count(html, "xmlns=\"http://www.w3.org/2000/svg\""));
@@ -196,9 +206,11 @@ TEST_CASE("the report puts the caution near the top and the sections in reading 
     const std::string html = render_html_report(tables, example_info(), all_figures(tables));
     const std::size_t caution = html.find(k_caution);
     REQUIRE(caution != std::string::npos);
+    // Warnings right under the caution when there are any, then the contents.
     const std::vector<std::string> order = {
-        "<header>",           "id=\"caution\"",     "id=\"key-results\"", "id=\"figures\"",
-        "id=\"tables\"",      "id=\"assumptions\"", "id=\"warnings\"",    "id=\"files\""};
+        "<header>",        "id=\"caution\"",     "id=\"warnings\"",
+        "id=\"contents\"", "id=\"key-results\"", "id=\"figures\"",
+        "id=\"tables\"",   "id=\"assumptions\"", "id=\"files\""};
     std::size_t last = 0;
     for (const auto& s : order) {
         INFO(s);
@@ -218,6 +230,12 @@ TEST_CASE("the report puts the caution near the top and the sections in reading 
     RunInfo no_seed = example_info();
     no_seed.seed.reset();
     CHECK(render_html_report(tables, no_seed, {}).find("<dt>seed</dt>") == std::string::npos);
+    // Without warnings, no warnings section, and the header says so.
+    RunInfo calm = example_info();
+    calm.warnings.clear();
+    const std::string h2 = render_html_report(tables, calm, {});
+    CHECK(h2.find("id=\"warnings\"") == std::string::npos);
+    CHECK(h2.find("<dt>warnings</dt><dd>none</dd>") != std::string::npos);
 }
 
 TEST_CASE("key results: pooled lambda with its interval, stochastic lambda, arrival, scenarios",
@@ -282,25 +300,45 @@ TEST_CASE("figures are inlined with their caption; unsafe SVG is left out", "[re
     const std::string html = render_html_report(tables, example_info(), figures);
     for (const auto& f : figures) {
         INFO(f.name);
-        std::string svg = f.svg;
-        while (!svg.empty() && svg.back() == '\n') svg.pop_back();
-        CHECK(html.find(svg) != std::string::npos);
+        // Inlined up to the drawn caption, which the report shows once, as HTML text.
+        const std::size_t cap = f.svg.find("<g class=\"caption\"");
+        REQUIRE(cap != std::string::npos);
+        const std::size_t body = f.svg.find("<title>");
+        CHECK(html.find(f.svg.substr(body, cap - body)) != std::string::npos);
         CHECK(html.find("<code>figures/" + f.name + ".svg</code>)</figcaption>") !=
               std::string::npos);
+        // The caption's first drawn line is shown once in the report (in the figcaption;
+        // the SVG's <desc> elements are not shown).
+        const std::size_t t0 = f.svg.find('>', f.svg.find("<text", cap)) + 1;
+        const std::string first_line = f.svg.substr(t0, f.svg.find("</text>", t0) - t0);
+        std::string shown = html;
+        for (std::size_t d = shown.find("<desc>"); d != std::string::npos;
+             d = shown.find("<desc>", d))
+            shown.erase(d, shown.find("</desc>", d) + 7 - d);
+        CHECK(count(shown, first_line) == 1);
     }
-    CHECK(html.find("Figure 1.</strong> Population growth rate") != std::string::npos);
+    CHECK(html.find("Figure 1.</strong> \u03bb per census-year kernel") != std::string::npos);
+    // The inlined drawing is cut where the caption began: height and viewBox.
+    const std::string& first = figures.front().svg;
+    const std::size_t ty = first.find("translate(0 ") + 12;
+    const std::string y = first.substr(ty, first.find(')', ty) - ty);
+    CHECK(html.find("height=\"" + y + "\" viewBox=\"0 0 720.00 " + y + "\"") != std::string::npos);
 
-    const Figure bad{"evil", "<svg xmlns=\"http://www.w3.org/2000/svg\"><script>x()</script>"
-                             "</svg>\n"};
-    const Figure declared{"declared", "<?xml version=\"1.0\"?>\n<svg><title>T &amp; U</title>"
-                                      "</svg>\n"};
+    const Figure bad{"evil",
+                     "<svg xmlns=\"http://www.w3.org/2000/svg\"><script>x()</script></svg>\n", ""};
+    const Figure declared{"declared",
+                          "<?xml version=\"1.0\"?>\n<svg><title>T &amp; U</title>"
+                          "<desc>D &amp; E</desc></svg>\n",
+                          ""};
     const std::string h2 = render_html_report(tables, example_info(), {bad, declared});
     CHECK(h2.find("<script") == std::string::npos);
     CHECK(h2.find("figures/evil.svg") != std::string::npos);
     CHECK(h2.find("left out") != std::string::npos);
     CHECK(h2.find("<?xml") == std::string::npos);
-    CHECK(h2.find("<svg><title>T &amp; U</title></svg>") != std::string::npos);
-    CHECK(h2.find("Figure 2.</strong> T &amp; U.") != std::string::npos);
+    CHECK(h2.find("<svg><title>T &amp; U</title><desc>D &amp; E</desc></svg>") !=
+          std::string::npos);
+    CHECK(h2.find("Figure 2.</strong> D &amp; E") != std::string::npos);
+    CHECK(h2.find("Figure 2. T &amp; U") != std::string::npos);  // its entry in the contents
     CHECK(tag_balance_error(h2).empty());
 }
 
@@ -375,4 +413,59 @@ TEST_CASE("a missing or malformed summary.json is a data error naming the file",
     }
     CHECK_THROWS_AS(rerender_html_report(tmp.path), safesite::InputError);
     CHECK_FALSE(fs::exists(tmp.path / "report.html"));
+}
+
+TEST_CASE("figures are grouped by section; diagnostics and life-history tables get sections",
+          "[report][unit]") {
+    auto tables = all_tables();
+    // Tables of other areas, rendered generically (invented values).
+    tables.push_back({"mesh_check",
+                      {"kernel", "lambda_n", "lambda_2n", "relative_change"},
+                      {{text("pooled"), number(1.03), number(1.0301), number(1e-4)}}});
+    tables.push_back({"reducibility",
+                      {"kernel", "reducible", "lambda_renewing"},
+                      {{text("every seed on bare gravel"), integer(1), number(0.93745)}}});
+    TidyTable life{"life_expectancy", {"microsite", "size", "expectancy"}, {}};
+    for (int i = 0; i < 200; ++i)
+        life.rows.push_back({text("gravel"), number(0.01 * i), number(1.0 + 0.1 * i)});
+    tables.push_back(life);
+    SvgChart c1("Check one", "caption one");
+    SvgChart c2("Mesh one", "caption two");
+    SvgChart c3("Main one", "caption three");
+    const std::vector<Figure> figures = {{"check_a", c1.to_svg(), "Model checking"},
+                                         {"mesh_a", c2.to_svg(), "Diagnostics"},
+                                         {"main_a", c3.to_svg(), ""}};
+    const std::string html = render_html_report(tables, example_info(), figures);
+    CHECK(tag_balance_error(html).empty());
+    // Fixed order: main figures, model checking, tables, life history, diagnostics.
+    const std::vector<std::string> order = {
+        "id=\"contents\"",         "id=\"figures\"",
+        "id=\"figure-main_a\"",    "id=\"model-checking\"",
+        "id=\"figure-check_a\"",   "id=\"tables\"",
+        "id=\"life-history\"",     "id=\"table-life_expectancy\"",
+        "id=\"diagnostics\"",      "id=\"figure-mesh_a\"",
+        "id=\"table-mesh_check\"", "id=\"table-reducibility\"",
+        "id=\"assumptions\""};
+    std::size_t last = 0;
+    for (const auto& s : order) {
+        INFO(s);
+        const std::size_t at = html.find(s);
+        REQUIRE(at != std::string::npos);
+        CHECK(at > last);
+        last = at;
+    }
+    // Numbered in the order shown; listed in the contents.
+    CHECK(html.find("Figure 1.</strong> caption three") != std::string::npos);
+    CHECK(html.find("Figure 2.</strong> caption one") != std::string::npos);
+    CHECK(html.find("Figure 3.</strong> caption two") != std::string::npos);
+    CHECK(html.find("<a href=\"#figure-check_a\">Figure 2. Check one</a>") != std::string::npos);
+    CHECK(html.find("<a href=\"#table-reducibility\">reducibility</a>") != std::string::npos);
+    // Generic tables: every column and value; a long table shows 150 rows and says so.
+    CHECK(html.find("<th>lambda_renewing</th>") != std::string::npos);
+    CHECK(html.find(">0.9375<") != std::string::npos);  // 4 significant digits
+    CHECK(html.find("The first 150 of 200 rows") != std::string::npos);
+    // No Model checking section without its figures.
+    const std::string plain = render_html_report(all_tables(), example_info(), {});
+    CHECK(plain.find("id=\"model-checking\"") == std::string::npos);
+    CHECK(plain.find("id=\"life-history\"") == std::string::npos);
 }

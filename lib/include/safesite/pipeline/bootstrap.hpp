@@ -17,6 +17,7 @@
 
 #include <cstddef>
 #include <cstdint>
+#include <functional>
 #include <string>
 #include <vector>
 
@@ -32,6 +33,11 @@ struct BootstrapOptions {
     std::uint64_t seed = 1;      ///< every replicate's stream derives from (seed, r)
     double level = 0.95;         ///< 0 < level < 1, two-sided
     unsigned threads = 0;        ///< worker threads; 0: the machine's hardware threads
+    /// Called after each replicate (failed ones included) with the number done so far and B:
+    /// 1, 2, …, B in this order, one call at a time (under a lock; from whichever thread
+    /// finished the replicate). For a progress display; it must not throw and should be quick.
+    /// Empty: not called.
+    std::function<void(std::size_t done, std::size_t total)> progress;
 };
 
 /// One quantity's interval.

@@ -20,11 +20,16 @@
 
 namespace safesite::report {
 
-/// One figure: the file stem and the SVG text.
+/// One figure: the file stem, the SVG text and the report section it belongs to.
+/// The HTML report (html_report.hpp) shows the figures grouped by `section`: "" (the main
+/// results) first, then "Model checking", then any other section in order of first
+/// appearance, and "Diagnostics" last. It shows the caption once, as HTML text under the
+/// drawing, taken from the SVG's `<desc>` (less the caution); a caption drawn by SvgChart (the
+/// group `<g class="caption" …>` at the end of the document) is taken out of the inlined copy.
 struct Figure {
-    std::string name;  ///< file stem, e.g. "lambda_by_year" (written as figures/<name>.svg)
-    std::string svg;   ///< standalone SVG 1.1 document
-    std::string section;  ///< report section the figure belongs to ("" for the main figures)
+    std::string name;     ///< file stem, e.g. "lambda_by_year" (written as figures/<name>.svg)
+    std::string svg;      ///< standalone SVG 1.1 document
+    std::string section;  ///< report section: "" (main results), "Model checking", "Diagnostics"
 };
 
 /// "lambda_by_year": λ of every census-year kernel (table `lambda`, kernel ≠ pooled) as
@@ -45,7 +50,9 @@ std::optional<Figure> scenarios_figure(const std::vector<TidyTable>& tables);
 std::optional<Figure> retention_curves_figure(const std::vector<TidyTable>& tables);
 
 /// "arrival": arrival fraction a_m per microsite (table `arrival`) as grouped horizontal
-/// bars, one bar per scenario (the baseline first, in table order) in each microsite.
+/// bars, one bar per scenario (the baseline first, in table order) in each microsite, and a
+/// last group "lost (in no microsite)" below a separating line: 1 − Σ_m a_m per scenario
+/// (left out for a scenario with a missing fraction).
 std::optional<Figure> arrival_figure(const std::vector<TidyTable>& tables);
 
 /// "perturbation": pooled λ against the proportional change δ of juvenile survival, in %

@@ -3,9 +3,13 @@
 /// The HTML report of an output folder (design.md section 6: "an HTML report that works
 /// offline"): one self-contained HTML5 file, `report.html` (docs/formats.md "Output folder").
 /// Inline CSS only, no scripts, no external resources (fonts, images, style sheets); the SVG
-/// figures are inlined. Sections, in reading order: header (model, file, safesite version,
-/// seed), the caution, key results, figures with captions, the main tables (numbers to 4
-/// significant digits), assumptions and warnings, and the files of the folder.
+/// figures are inlined; the only links are to places in the page. Sections, in reading order:
+/// header (model, file, safesite version, seed, number of warnings), the caution, the warnings
+/// (when any), a table of contents, key results, the figures grouped by Figure::section (main
+/// results, "Model checking", other sections), the main tables (numbers to 4 significant
+/// digits), "Life history" (tables named `life_*`), "Diagnostics" (its figures and the tables
+/// `mesh_check`, `eviction`, `reducibility`, `diagnostics`, at most 150 rows each), the
+/// assumptions, and the files of the folder. Each caption is shown once, under its figure.
 
 #include <filesystem>
 #include <string>

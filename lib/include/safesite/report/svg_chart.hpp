@@ -9,9 +9,14 @@
 /// Marks are given in data coordinates and kept until to_svg() lays the chart out; a
 /// categorical coordinate is the label index i (0, 1, …), the band centre, and fractional
 /// values move within the band (grouped bars). A mark with a non-finite coordinate is
-/// skipped; a line is broken at non-finite points. Category and legend labels longer than 36
-/// characters are shortened with "…". Numbers are written with fixed short
-/// precision, so the same marks give byte-identical text on every run and machine.
+/// skipped; a line is broken at non-finite points. Long titles, category and legend labels are
+/// wrapped onto several lines (wrap_text), never cut. Labels of reference lines are placed
+/// where they overlap no mark and stay inside the canvas (inside the plot when there is room,
+/// else above it or in a column to its right). The caption lines are the last element of the
+/// document, a group `<g class="caption" transform="translate(0 Y)">` whose Y is the height of
+/// everything above them (the HTML report uses this to show the caption once, as HTML text).
+/// Numbers are written with fixed short precision, so the same marks give byte-identical text
+/// on every run and machine.
 
 #include <cstddef>
 #include <string>
@@ -52,7 +57,39 @@ std::string xml_escape(const std::string& text);
 enum class Swatch { point, line, point_line, bar };
 
 /// Stroke pattern of a series' lines.
-enum class Dash { solid, dashed, dotted, dash_dot };
+enum class Dash { solid, dashed, dotted, dash_dot, long_dash, dash_dot_dot };
+
+/// The colours of series 0, 1, … ("#rrggbb"; series i takes colour i mod 8). A palette of our
+/// own, found by a search for the 8 sRGB colours (channels in steps of 17) whose smallest
+/// pairwise CIEDE2000 difference is largest for normal vision and under the protanopia and
+/// deuteranopia simulations of Machado, Oliveira & Fernandes (2009) at severity 1 (smallest
+/// difference about 16; tritanopia about 13), with CIE L* between 22 and 62 so that each has a
+/// contrast of at least 3:1 on white (WCAG 2.1 non-text contrast), chroma at least 25 (apart
+/// from the grey of the reference lines), and ordered so that the first colours are the most
+/// distinct. tests/unit/report/palette_test.cpp checks these properties.
+const std::vector<std::string>& series_palette();
+
+/// Number of marker shapes (circle, square, triangle up, diamond, triangle down, plus, star,
+/// cross).
+inline constexpr std::size_t k_marker_shapes = 8;
+
+/// The marker shape of series i: (i + ⌊i / 8⌋) mod 8, so that series 8 to 15, which repeat
+/// the colours of 0 to 7, take other shapes.
+std::size_t series_marker(std::size_t series);
+
+/// The dash pattern of the i-th line of a figure with several lines (solid, dashed, dotted,
+/// dash-dot, long dash, dash-dot-dot, then again), so that lines differ without colour.
+Dash series_dash(std::size_t i);
+
+/// Greedy word wrap of `text` into lines of at most `width` code points (width >= 1): breaks
+/// at spaces, else after '-', '/' or '_' inside a word, else inside a word that is longer than
+/// a line. No character is dropped except the spaces where lines break; empty text gives no
+/// line.
+std::vector<std::string> wrap_text(const std::string& text, std::size_t width);
+
+/// Estimated width in px of text in a sans-serif font of `font_size` px without font metrics:
+/// 0.56 em per code point (common practice; a little generous for digits).
+double estimated_text_width(const std::string& text, double font_size);
 
 /// A chart under construction; to_svg() renders it. Not thread-safe; cheap to copy.
 class SvgChart {
@@ -86,9 +123,9 @@ public:
     void include_x(double value);
     void include_y(double value);
 
-    /// A new series; its colour and marker come from its index (palette in the .cpp), its
-    /// lines are drawn with `dash`. An empty `legend` keeps it out of the legend. Returns the
-    /// series index.
+    /// A new series; its colour and marker come from its index (series_palette(),
+    /// series_marker()), its lines are drawn with `dash`. An empty `legend` keeps it out of
+    /// the legend. Returns the series index.
     std::size_t add_series(std::string legend, Swatch swatch, Dash dash = Dash::solid);
 
     /// One point mark per finite (x[i], y[i]). \pre x.size() == y.size().
@@ -99,7 +136,8 @@ public:
     void add_whisker(std::size_t series, double x0, double y0, double x1, double y1);
     /// A horizontal bar on a categorical y axis: from x = `from` to x = `to`, centred at
     /// y = `category` (index, fractional allowed), `thickness` in band units (0 < t <= 1; at
-    /// most 40 px). A non-empty `label` (e.g. the value) is written just past the end `to`.
+    /// most 40 px). A non-empty `label` (e.g. the value) is written just past the end `to`,
+    /// or inside the bar at that end when it would leave the plot there.
     void add_hbar(std::size_t series, double category, double from, double to, double thickness,
                   std::string label = {});
     /// A translucent band across the whole plot between y = lo and y = hi.
