@@ -1245,12 +1245,17 @@ std::string compose_panels(const std::string& title, const std::string& caption,
         }
         y += row_h[r];
     }
-    for (std::size_t i = 0; i < lines.size(); ++i) {
-        o += fmt::format("<text class=\"caption\" x=\"16\" y=\"{}\" font-size=\"{}\" "
-                         "fill=\"#444444\">{}</text>\n",
-                         px(y + 8.0 + caption_line * static_cast<double>(i + 1) -
-                            0.35 * caption_fs),
-                         px(caption_fs), xml_escape(lines[i]));
+    // The caption as the last element, in the group SvgChart uses, so that the HTML report
+    // shows it once (as text under the figure) and crops the drawing at y.
+    if (!lines.empty()) {
+        o += fmt::format("<g class=\"caption\" transform=\"translate(0 {})\">\n", px(y));
+        for (std::size_t i = 0; i < lines.size(); ++i)
+            o += fmt::format("<text x=\"16\" y=\"{}\" font-size=\"{}\" "
+                             "fill=\"#444444\">{}</text>\n",
+                             px(8.0 + caption_line * static_cast<double>(i + 1) -
+                                0.35 * caption_fs),
+                             px(caption_fs), xml_escape(lines[i]));
+        o += "</g>\n";
     }
     o += "</svg>\n";
     return o;
