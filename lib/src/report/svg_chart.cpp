@@ -1213,7 +1213,7 @@ std::string compose_panels(const std::string& title, const std::string& caption,
     const double caption_line = 1.35 * caption_fs;
     const auto chars =
         static_cast<std::size_t>(std::max((width - 32.0) / (0.5 * caption_fs), 20.0));
-    const std::vector<std::string> lines = wrap(caption, chars);
+    const std::vector<std::string> lines = wrap_text(caption, chars);
     const double height =
         title_h + body + 8.0 + caption_line * static_cast<double>(lines.size()) + 8.0;
 
@@ -1268,7 +1268,8 @@ std::string heat_map_svg(const std::string& title, const std::string& caption,
     assert(columns >= 1);
     const double fs = SvgChart::Layout{}.font_size;
     constexpr double side = 190.0;  // plot square, px
-    constexpr double left = 58.0, top = 42.0, right = 16.0, bottom = 50.0;
+    // top leaves room for a panel title wrapped onto two lines and the maximum under it.
+    constexpr double left = 58.0, top = 56.0, right = 16.0, bottom = 50.0;
     const double panel_w = left + side + right, panel_h = top + side + bottom;
     std::vector<std::string> svgs;
     for (const auto& p : panels) {
@@ -1279,12 +1280,21 @@ std::string heat_map_svg(const std::string& title, const std::string& caption,
             "<svg xmlns=\"http://www.w3.org/2000/svg\" version=\"1.1\" width=\"{0}\" "
             "height=\"{1}\" viewBox=\"0 0 {0} {1}\">\n",
             px(panel_w), px(panel_h));
-        o += fmt::format("<text class=\"panel-title\" x=\"{}\" y=\"{}\" font-size=\"{}\" "
-                         "font-weight=\"bold\">{}</text>\n",
-                         px(8.0), px(16.0), px(0.9 * fs), xml_escape(shorten(p.title, 36)));
+        // The block's name wrapped (never cut): two lines of 40 characters hold any pair of
+        // class names; a longer name keeps its rest on the second line.
+        std::vector<std::string> title_lines = wrap_text(p.title, 40);
+        while (title_lines.size() > 2) {
+            title_lines[1] += " " + title_lines.back();
+            title_lines.pop_back();
+        }
+        for (std::size_t i = 0; i < title_lines.size(); ++i)
+            o += fmt::format("<text class=\"panel-title\" x=\"{}\" y=\"{}\" font-size=\"{}\" "
+                             "font-weight=\"bold\">{}</text>\n",
+                             px(8.0), px(16.0 + 1.2 * 0.9 * fs * static_cast<double>(i)),
+                             px(0.9 * fs), xml_escape(title_lines[i]));
         o += fmt::format("<text x=\"{}\" y=\"{}\" font-size=\"{}\" fill=\"#444444\">"
                          "maximum {}</text>\n",
-                         px(8.0), px(32.0), px(0.85 * fs), xml_escape(fmt::format("{:.3g}", vmax)));
+                         px(8.0), px(46.0), px(0.85 * fs), xml_escape(fmt::format("{:.3g}", vmax)));
         const std::size_t nx = p.x.size(), ny = p.y.size();
         if (nx == 0 || ny == 0 || p.values.size() != nx * ny) {
             o += "</svg>\n";
@@ -1397,7 +1407,7 @@ std::string heat_map_svg(const std::string& title, const std::string& caption,
             o += fmt::format("<text x=\"46\" y=\"{}\" font-size=\"{}\">{}</text>\n",
                              px(top + side - t * side + 0.3 * fs), px(0.85 * fs),
                              t == 0.0 ? std::string("0") : format_fixed(t, 1) + " \u00d7 max");
-        const auto lines = wrap(legend_label, 22);
+        const auto lines = wrap_text(legend_label, 22);
         for (std::size_t i = 0; i < lines.size(); ++i)
             o += fmt::format("<text x=\"110\" y=\"{}\" font-size=\"{}\">{}</text>\n",
                              px(top + 12.0 + 1.3 * fs * static_cast<double>(i)), px(0.85 * fs),
