@@ -6,12 +6,12 @@
 #include <set>
 #include <sstream>
 
-#include <toml++/toml.h>
-
 #include "safesite/io/near_match.hpp"
 #include "safesite/spec/formula_source.hpp"
 #include "safesite/spec/mesh_memory.hpp"
 #include "safesite/spec/model_spec.hpp"
+// toml++ with its internal checks tested, not assumed (issue 11; see the header).
+#include "spec/detail/checked_toml.hpp"
 
 namespace safesite::spec {
 
@@ -1245,6 +1245,10 @@ ModelSpec parse_model_spec(std::string_view text, const std::filesystem::path& f
         throw SpecError({ctx.file, static_cast<std::size_t>(e.source().begin.line),
                          static_cast<std::size_t>(e.source().begin.column), ""},
                         "TOML syntax: " + std::string(e.description()));
+    } catch (const detail::TomlCheckFailure& e) {
+        // Malformed text that broke one of toml++'s internal checks (issue 11).
+        const auto at = detail::explain_check_failure(text, e);
+        throw SpecError({ctx.file, at.line, at.column, ""}, "TOML syntax: " + at.reason);
     }
     return read_document(doc, file, ctx);
 }
