@@ -11,6 +11,47 @@
 
 namespace safesite::test {
 
+/// A small valid model file (three microsites, every rate, arrival fractions given) that
+/// model-file error tests edit one thing at a time.
+inline std::string base_model_text() {
+    return R"([model]
+size_transform = "log"
+
+[data]
+census = "census.csv"
+
+[mesh]
+points = 50
+
+[microsites]
+labels = ["gravel", "cushion", "tussock"]
+bare = "gravel"
+
+[rates.survival]
+family = "binomial"
+formula = "survived ~ size"
+
+[rates.growth]
+family = "gaussian"
+formula = "size_next ~ size"
+
+[rates.flowering]
+family = "binomial"
+formula = "flowered ~ size"
+
+[rates.seeds]
+family = "poisson"
+formula = "seeds ~ size"
+
+[rates.recruit_size]
+family = "gaussian"
+formula = "size ~ microsite"
+
+[arrival]
+fractions = { gravel = 0.5, cushion = 0.3, tussock = 0.2 }
+)";
+}
+
 /// `text` with the first `from` replaced by `to`; throws when `from` is absent.
 inline std::string replace(std::string text, const std::string& from, const std::string& to) {
     const auto at = text.find(from);

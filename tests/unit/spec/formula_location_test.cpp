@@ -19,42 +19,8 @@ using safesite::test::replace;
 
 namespace {
 
-const std::string k_base = R"([model]
-size_transform = "log"
-
-[data]
-census = "census.csv"
-
-[mesh]
-points = 50
-
-[microsites]
-labels = ["gravel", "cushion", "tussock"]
-bare = "gravel"
-
-[rates.survival]
-family = "binomial"
-formula = "survived ~ size"
-
-[rates.growth]
-family = "gaussian"
-formula = "size_next ~ size"
-
-[rates.flowering]
-family = "binomial"
-formula = "flowered ~ size"
-
-[rates.seeds]
-family = "poisson"
-formula = "seeds ~ size"
-
-[rates.recruit_size]
-family = "gaussian"
-formula = "size ~ microsite"
-
-[arrival]
-fractions = { gravel = 0.5, cushion = 0.3, tussock = 0.2 }
-)";
+// A valid model (checked in model_spec_errors_test); each case edits one thing.
+const std::string k_base = safesite::test::base_model_text();
 
 SpecError refused(const std::string& text) { return safesite::test::refused(text, "m.toml"); }
 
