@@ -388,6 +388,38 @@ std::optional<Figure> check_recruit_sizes_figure(const std::vector<TidyTable>& t
                          "microsite.");
 }
 
+/// Columns of a fitted-curve table: the panel, the series within it, x and y.
+struct CurveColumns {
+    const char* panel;
+    const char* series;
+    const char* x;
+    const char* y;
+};
+
+/// One fitted line per (panel, series) of table `c`, on the panels that have observed points,
+/// x sorted; rows with x above `x_max` are left out.
+void add_fitted_lines(Panels& panels, SeriesMap& series, const Reader& c,
+                      const CurveColumns& col,
+                      double x_max = std::numeric_limits<double>::infinity()) {
+    std::map<std::pair<std::string, std::string>,
+             std::pair<std::vector<double>, std::vector<double>>>
+        lines;
+    for (const auto& row : c.table->rows) {
+        const double x = c.num(row, col.x);
+        if (x > x_max) continue;
+        auto& l = lines[{c.text(row, col.panel), c.text(row, col.series)}];
+        l.first.push_back(x);
+        l.second.push_back(c.num(row, col.y));
+    }
+    for (auto& [k, l] : lines) {
+        if (!panels.has(k.first)) continue;
+        SvgChart& chart = panels.at(k.first);
+        sort_xy(l.first, l.second);
+        chart.add_line(series.get(chart, k.first, k.second, Swatch::point_line), l.first,
+                       l.second);
+    }
+}
+
 std::optional<Figure> check_trapping_figure(const std::vector<TidyTable>& tables) {
     const Reader r(tables, "check_trapping", {"form", "seed_type", "neighbour_size", "share"});
     if (!r.ok) return std::nullopt;
@@ -403,20 +435,7 @@ std::optional<Figure> check_trapping_figure(const std::vector<TidyTable>& tables
     const Reader c(tables, "check_trapping_curve",
                    {"form", "seed_type", "neighbour_size", "trapping"});
     if (c.ok) {
-        std::map<std::pair<std::string, std::string>, std::pair<std::vector<double>,
-                                                                 std::vector<double>>> lines;
-        for (const auto& row : c.table->rows) {
-            auto& l = lines[{c.text(row, "form"), c.text(row, "seed_type")}];
-            l.first.push_back(c.num(row, "neighbour_size"));
-            l.second.push_back(c.num(row, "trapping"));
-        }
-        for (auto& [k, l] : lines) {
-            if (!panels.has(k.first)) continue;
-            SvgChart& chart = panels.at(k.first);
-            sort_xy(l.first, l.second);
-            chart.add_line(series.get(chart, k.first, k.second, Swatch::point_line), l.first,
-                           l.second);
-        }
+        add_fitted_lines(panels, series, c, {"form", "seed_type", "neighbour_size", "trapping"});
     }
     for (const auto& key : panels.keys()) {
         SvgChart& chart = panels.at(key);
@@ -450,22 +469,9 @@ std::optional<Figure> check_retention_figure(const std::vector<TidyTable>& table
     }
     const Reader c(tables, "retention_curve", {"microsite", "seed_type", "day", "retained"});
     if (c.ok) {
-        std::map<std::pair<std::string, std::string>, std::pair<std::vector<double>,
-                                                                 std::vector<double>>> lines;
-        for (const auto& row : c.table->rows) {
-            const double day = c.num(row, "day");
-            if (day > last_day) continue;  // the curve over the observed days only
-            auto& l = lines[{c.text(row, "microsite"), c.text(row, "seed_type")}];
-            l.first.push_back(day);
-            l.second.push_back(c.num(row, "retained"));
-        }
-        for (auto& [k, l] : lines) {
-            if (!panels.has(k.first)) continue;
-            SvgChart& chart = panels.at(k.first);
-            sort_xy(l.first, l.second);
-            chart.add_line(series.get(chart, k.first, k.second, Swatch::point_line), l.first,
-                           l.second);
-        }
+        // The curve over the observed days only.
+        add_fitted_lines(panels, series, c, {"microsite", "seed_type", "day", "retained"},
+                         last_day);
     }
     for (const auto& key : panels.keys()) {
         SvgChart& chart = panels.at(key);
