@@ -12,45 +12,17 @@ using safesite::census::AliveAfterDead;
 using safesite::census::AliveWithoutSize;
 using safesite::spec::parse_model_spec;
 using safesite::test::line_of;
+using safesite::test::replace;
 
 namespace {
 
-const std::string k_model = R"([model]
-size_transform = "log"
-
-[data]
-census = "census.csv"
-
-[mesh]
-points = 50
-
-[microsites]
-labels = ["gravel", "cushion"]
-bare = "gravel"
-
-[rates.survival]
-family = "binomial"
-formula = "survived ~ size"
-
-[rates.growth]
-family = "gaussian"
-formula = "size_next ~ size"
-
-[rates.flowering]
-family = "binomial"
-formula = "flowered ~ size"
-
-[rates.seeds]
-family = "poisson"
-formula = "seeds ~ size"
-
-[rates.recruit_size]
-family = "gaussian"
-formula = "size ~ microsite"
-
-[arrival]
-fractions = { gravel = 0.6, cushion = 0.4 }
-)";
+// The shared base model with two microsites.
+const std::string k_model =
+    replace(replace(safesite::test::base_model_text(),
+                    "labels = [\"gravel\", \"cushion\", \"tussock\"]",
+                    "labels = [\"gravel\", \"cushion\"]"),
+            "fractions = { gravel = 0.5, cushion = 0.3, tussock = 0.2 }",
+            "fractions = { gravel = 0.6, cushion = 0.4 }");
 
 }  // namespace
 
